@@ -1,0 +1,77 @@
+"""Where a number came from, carried with the number to the report.
+
+Every quantity pullproof computes with is a :class:`Sourced` value: a pint
+quantity plus a :class:`Provenance` saying which part field, family table entry
+(and its standard), rules-file key, or named default supplied it.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from enum import Enum
+from typing import Any
+
+__all__ = ["Origin", "Provenance", "Sourced", "Status"]
+
+
+class Origin(str, Enum):
+    """The kind of place a number was taken from."""
+
+    FIELD = "field"  # a field (property) on a placed part in the schematic
+    VALUE = "value"  # the part's Value field, read as a resistance/capacitance/…
+    FAMILY = "family"  # a built-in logic-family table entry
+    PART_LIBRARY = "part-library"  # a user part library entry (TOML)
+    RULES = "rules"  # a key of the project rules file
+    DEFAULT = "default"  # a documented default, with its reason
+    SCHEMATIC = "schematic"  # derived from the drawing (rail name, topology)
+    DERIVED = "derived"  # computed from other sourced numbers
+
+
+class Status(str, Enum):
+    """How far a number has been confirmed, as the references describe it."""
+
+    CONFIRMED = "confirmed"
+    FROM_MEMORY = "from memory"
+    COMMON_PRACTICE = "common practice"
+    USER = "user"  # the designer wrote it (field, rules file)
+    DEFAULT = "default"
+
+
+@dataclass(frozen=True)
+class Provenance:
+    """The source of one number.
+
+    ``where`` is a short human phrase ("field 'Tolerance' on R3",
+    "family 74HC, JEDEC JESD7A", "rules key resistor.tolerance (pullproof.toml:4)");
+    ``reason`` explains a default or carries a caution ("check the datasheet of
+    the part you fit").
+    """
+
+    origin: Origin
+    where: str
+    status: Status = Status.USER
+    reason: str = ""
+
+    def __post_init__(self) -> None:
+        if not self.where:
+            raise ValueError("a provenance needs a non-empty 'where'")
+
+    def describe(self) -> str:
+        """One line for reports: where, status and reason."""
+        text = f"{self.where} [{self.status.value}]"
+        return f"{text}: {self.reason}" if self.reason else text
+
+
+@dataclass(frozen=True)
+class Sourced:
+    """A pint quantity (or plain number for ratios) with its provenance."""
+
+    value: Any  # pint.Quantity; typed loosely because pint ships no stubs
+    source: Provenance
+
+    def magnitude(self, unit: str) -> float:
+        """The value as a float in ``unit`` (use "" for a dimensionless ratio)."""
+        from .units import ureg
+
+        q = self.value if hasattr(self.value, "to") else ureg.Quantity(self.value)
+        return float(q.to(unit).magnitude) if unit else float(q.to("").magnitude)
