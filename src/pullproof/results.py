@@ -1,0 +1,151 @@
+"""What a review produces: bounds, verdicts, findings and skipped resistors.
+
+These records are the contract between the engine (:mod:`pullproof.constraints`,
+:mod:`pullproof.evaluate`, :mod:`pullproof.detect`) and every report (console,
+JSON, HTML note). Reports read them; they never recompute a number.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from enum import Enum
+
+from .network import Missing, PullNetwork
+from .provenance import Sourced
+
+__all__ = [
+    "Bound",
+    "BoundKind",
+    "Finding",
+    "NetworkResult",
+    "Recommendation",
+    "ReviewResult",
+    "Severity",
+    "Skipped",
+    "Term",
+    "Verdict",
+]
+
+
+class BoundKind(str, Enum):
+    MIN = "min"  # R_lo (lowest resistance in the band) must be ≥ ohms
+    MAX = "max"  # R_hi (highest resistance in the band) must be ≤ ohms
+
+
+class Verdict(str, Enum):
+    """Plain-word verdicts, ordered from best to worst by :attr:`rank`."""
+
+    PASS = "pass"
+    MARGINAL = "marginal"  # hard limits met; a margin or soft limit missed
+    INCOMPLETE = "incomplete"  # a needed value is missing
+    FAIL = "fail"
+
+    @property
+    def rank(self) -> int:
+        return {"pass": 0, "marginal": 1, "incomplete": 2, "fail": 3}[self.value]
+
+
+Severity = Verdict  # findings use the same scale
+
+
+@dataclass(frozen=True)
+class Term:
+    """One named input of a formula: its symbol, value and provenance."""
+
+    symbol: str  # "V_min", "V_IH,min", "ΣI_high"
+    value: Sourced
+
+
+@dataclass(frozen=True)
+class Bound:
+    """One constraint's limit on the pull resistance.
+
+    ``ohms`` is None when the constraint could not be evaluated (then ``missing``
+    says why). ``applies_to`` is which end of the fitted band is compared: a MAX
+    bound limits the band's top (R_hi), a MIN bound its bottom (R_lo).
+    """
+
+    constraint: str  # registry id, e.g. "high-level-holds"
+    title: str  # "High level holds"
+    kind: BoundKind
+    ohms: float | None
+    hard: bool
+    formula: str  # "R_hi ≤ (V_min − V_IH,min − m) / ΣI_high"
+    substituted: str  # "(4.5 V − 3.15 V − 0.1 V) / 1 µA"
+    terms: tuple[Term, ...]
+    source: str = ""  # the formula's own source (standard, handbook, circuit theory)
+    explanation: str = ""  # one sentence: why this bound exists here
+    relax: str = ""  # what would relax this bound, for empty-window advice
+    corner: str = ""  # which corner was worst, e.g. "VCC = 4.5 V, 85 °C"
+    missing: tuple[Missing, ...] = ()
+
+    @property
+    def evaluated(self) -> bool:
+        return self.ohms is not None
+
+
+@dataclass(frozen=True)
+class Recommendation:
+    """E-series values whose whole band fits the window, and the pick."""
+
+    series: str
+    tolerance: float  # fraction assumed for the candidates' band
+    candidates: tuple[float, ...]  # ohms, ascending
+    pick: float | None
+    policy: str  # "centre" or "low-current"
+    reason: str  # one sentence on why the pick
+
+
+@dataclass(frozen=True)
+class NetworkResult:
+    """The judgement of one pull network."""
+
+    network: PullNetwork
+    bounds: tuple[Bound, ...]
+    window: tuple[float | None, float | None]  # (max of hard mins, min of hard maxes), ohms
+    band: tuple[float, float]  # fitted (R_lo, R_hi) over tolerance and TCR, ohms
+    verdict: Verdict
+    reason: str  # the deciding reason in one sentence
+    margins: tuple[float | None, float | None]  # (R_lo / min − 1, max / R_hi − 1)
+    binding: tuple[str, ...]  # constraint ids of the binding bounds
+    recommendation: Recommendation | None
+    advice: tuple[str, ...] = ()  # for an empty window: what would relax each binding bound
+    missing: tuple[Missing, ...] = ()
+
+
+@dataclass(frozen=True)
+class Finding:
+    """Something wrong that is not a window check (floating input, rail mismatch, …)."""
+
+    kind: str  # "floating-input", "rail-above-input-tolerance", "up-and-down", "pull-without-input"
+    severity: Verdict
+    net: str
+    refs: tuple[str, ...]
+    message: str
+
+
+@dataclass(frozen=True)
+class Skipped:
+    """A resistor tied to a rail that is deliberately not judged as a logic pull."""
+
+    ref: str
+    net: str
+    reason: str
+
+
+@dataclass(frozen=True)
+class ReviewResult:
+    """Everything one review of one root schematic produced."""
+
+    root: str
+    networks: tuple[NetworkResult, ...]
+    findings: tuple[Finding, ...]
+    skipped: tuple[Skipped, ...]
+    files: tuple[tuple[str, str], ...] = ()  # (sheet file, absolute path) of every file read
+    rules_file: str | None = None
+    notes: tuple[str, ...] = field(default_factory=tuple)
+
+    @property
+    def worst(self) -> Verdict:
+        ranks = [n.verdict for n in self.networks] + [f.severity for f in self.findings]
+        return max(ranks, key=lambda v: v.rank, default=Verdict.PASS)
