@@ -16,6 +16,7 @@ from .provenance import Sourced
 __all__ = [
     "Bound",
     "BoundKind",
+    "Check",
     "Finding",
     "NetworkResult",
     "Recommendation",
@@ -85,6 +86,23 @@ class Bound:
 
 
 @dataclass(frozen=True)
+class Check:
+    """A pass/fail condition that does not depend on the resistance value
+    (input tolerance of the pull rail, resistor working voltage)."""
+
+    constraint: str  # registry id, e.g. "input-tolerance"
+    title: str
+    ok: bool | None  # None: could not be evaluated (see missing)
+    hard: bool
+    formula: str  # "V_max ≤ V_in,max"
+    substituted: str
+    terms: tuple[Term, ...]
+    source: str = ""
+    explanation: str = ""
+    missing: tuple[Missing, ...] = ()
+
+
+@dataclass(frozen=True)
 class Recommendation:
     """E-series values whose whole band fits the window, and the pick."""
 
@@ -109,6 +127,7 @@ class NetworkResult:
     margins: tuple[float | None, float | None]  # (R_lo / min − 1, max / R_hi − 1)
     binding: tuple[str, ...]  # constraint ids of the binding bounds
     recommendation: Recommendation | None
+    checks: tuple[Check, ...] = ()
     advice: tuple[str, ...] = ()  # for an empty window: what would relax each binding bound
     missing: tuple[Missing, ...] = ()
 
