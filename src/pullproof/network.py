@@ -109,7 +109,9 @@ class InputOnNet:
     same_supply_as_pull: bool = True
     series_ohms: Sourced | None = None  # a series resistor between the net and this pin
     series_ref: str = ""
-    internal_pull: tuple[Sourced, Sourced] | None = None  # (min, max) ohms of an enabled internal pull
+    internal_pull: tuple[Sourced, Sourced] | None = (
+        None  # (min, max) ohms of an enabled internal pull
+    )
     internal_pull_direction: Direction | None = None
     schmitt: bool = False
     missing: tuple[Missing, ...] = ()
@@ -173,6 +175,8 @@ class NetworkRules:
     edge_time_max: Sourced | None = None  # s, slowest allowed edge through the undefined band
     i2c_mode: str = ""  # "", "standard", "fast", "fast-plus" when the net is an I2C line
     bus_capacitance: Sourced | None = None  # F
+    # ratio: a band closer than this to a binding hard edge is "marginal" (evaluate: 10 %)
+    margin_ratio: Sourced | None = None
 
 
 @dataclass(frozen=True)

@@ -1,0 +1,271 @@
+"""Judge one pull network: window, fitted band, margin, verdict and E-series recommendation.
+
+Window = [largest hard minimum, smallest hard maximum]. The fitted resistor's whole
+band (tolerance and TCR over the rules' temperature span) must sit inside it.
+Verdicts: ``fail`` when a hard bound or check is violated (an empty window always
+fails); else ``incomplete`` when a needed value is missing; else ``marginal`` when
+a soft bound is missed or the band sits closer than the rules' margin ratio
+(default 10 %) to a binding edge; else ``pass``.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Iterable, Mapping
+
+from . import eseries
+from .constraints import BUILTIN, Constraint, ConstraintPluginError
+from .constraints._common import band, dedupe, eng, pct
+from .errors import RulesError
+from .network import Missing, PullNetwork
+from .results import Bound, BoundKind, Check, NetworkResult, Recommendation, Verdict
+
+__all__ = ["DEFAULT_MARGIN_RATIO", "OPEN_BOTTOM_OHMS", "OPEN_TOP_OHMS", "evaluate", "recommend"]
+
+#: A band closer than this (ratio) to a binding hard edge is marginal, unless the rules say.
+DEFAULT_MARGIN_RATIO = 0.10
+#: With no hard maximum, candidates stop at max(1 MΩ, 10 × minimum): above about 1 MΩ
+#: board leakage (flux, humidity) competes with the pull (common practice).
+OPEN_TOP_OHMS = 1e6
+#: With no hard minimum, candidates start at min(1 kΩ, maximum / 10): below that a pull
+#: wastes current for no benefit on a logic input (common practice).
+OPEN_BOTTOM_OHMS = 1e3
+# Float slack at bound edges: a value computed to sit on an edge is on it.
+_REL = 1e-9
+
+
+def evaluate(
+    network: PullNetwork, *, registry: Mapping[str, Constraint] | None = None
+) -> NetworkResult:
+    """Run every constraint of ``registry`` (default: the built-ins) and judge the result.
+
+    Raises :class:`~pullproof.constraints.ConstraintPluginError` when a constraint that
+    is not built in fails while running.
+    """
+    reg = BUILTIN if registry is None else registry
+    items = _run(reg, network)
+    bounds = tuple(i for i in items if isinstance(i, Bound))
+    checks = tuple(i for i in items if isinstance(i, Check))
+    r_lo, r_hi = band(network.resistor, network.rules)
+
+    mins = [b for b in bounds if b.hard and b.kind is BoundKind.MIN and b.ohms is not None]
+    maxs = [b for b in bounds if b.hard and b.kind is BoundKind.MAX and b.ohms is not None]
+    lo_b = max(mins, key=_ohms, default=None)
+    hi_b = min(maxs, key=_ohms, default=None)
+    lo = None if lo_b is None else _ohms(lo_b)
+    hi = None if hi_b is None else _ohms(hi_b)
+    margins = (
+        None if lo is None or lo == 0 else r_lo / lo - 1,
+        None if hi is None or r_hi == 0 else hi / r_hi - 1,
+    )
+    binding = tuple(b.constraint for b in (lo_b, hi_b) if b is not None)
+    missing = dedupe(
+        [*network.missing]
+        + [m for b in bounds if not b.evaluated for m in b.missing]
+        + [m for c in checks if c.ok is None for m in c.missing]
+    )
+    empty = lo is not None and hi is not None and lo > hi * (1 + _REL)
+    advice = _advice(lo_b, hi_b) if empty else ()
+    verdict, reason = _judge(network, bounds, checks, (r_lo, r_hi), lo_b, hi_b, margins, missing)
+    rec = None
+    if not missing and not empty and (lo is not None or hi is not None):
+        rec = recommend(network, (lo, hi), soft=[b for b in bounds if not b.hard and b.evaluated])
+    return NetworkResult(
+        network=network,
+        bounds=bounds,
+        window=(lo, hi),
+        band=(r_lo, r_hi),
+        verdict=verdict,
+        reason=reason,
+        margins=margins,
+        binding=binding,
+        recommendation=rec,
+        checks=checks,
+        advice=advice,
+        missing=missing,
+    )
+
+
+def _run(reg: Mapping[str, Constraint], network: PullNetwork) -> list[Bound | Check]:
+    builtins = set(map(id, BUILTIN.values()))
+    out: list[Bound | Check] = []
+    for cid, c in reg.items():
+        if id(c) in builtins:
+            out.extend(c(network))
+            continue
+        try:
+            found = tuple(c(network))
+        except Exception as exc:  # a plugin's bug is reported in one line, never a traceback
+            raise ConstraintPluginError(
+                f"constraint {cid!r} failed on net {network.net}: {exc}"
+            ) from None
+        for item in found:
+            if not isinstance(item, Bound | Check):
+                raise ConstraintPluginError(
+                    f"constraint {cid!r} returned {type(item).__name__}; expected Bound or Check"
+                )
+        out.extend(found)
+    return out
+
+
+def _ohms(b: Bound) -> float:
+    assert b.ohms is not None
+    return b.ohms
+
+
+def _violated(b: Bound, r_lo: float, r_hi: float) -> bool:
+    if b.ohms is None:
+        return False
+    if b.kind is BoundKind.MIN:
+        return r_lo < b.ohms * (1 - _REL)
+    return r_hi > b.ohms * (1 + _REL)
+
+
+def _advice(lo_b: Bound | None, hi_b: Bound | None) -> tuple[str, ...]:
+    out = []
+    for b, word in ((lo_b, "at least"), (hi_b, "at most")):
+        if b is None or b.ohms is None:
+            continue
+        tip = f"; relax it with {b.relax}" if b.relax else ""
+        out.append(f"{b.title} ({b.constraint}) needs R {word} {eng(b.ohms, 'Ω')}{tip}.")
+    return tuple(out)
+
+
+def _judge(
+    network: PullNetwork,
+    bounds: tuple[Bound, ...],
+    checks: tuple[Check, ...],
+    rband: tuple[float, float],
+    lo_b: Bound | None,
+    hi_b: Bound | None,
+    margins: tuple[float | None, float | None],
+    missing: tuple[Missing, ...],
+) -> tuple[Verdict, str]:
+    r_lo, r_hi = rband
+    res = network.resistor
+    fitted = (
+        f"{'/'.join(res.refs)} ({eng(res.ohms.magnitude('ohm'), 'Ω')} "
+        f"±{pct(res.tolerance.magnitude(''))}) spans {eng(r_lo, 'Ω')}–{eng(r_hi, 'Ω')}"
+    )
+    if lo_b is not None and hi_b is not None and _ohms(lo_b) > _ohms(hi_b) * (1 + _REL):
+        return Verdict.FAIL, (
+            f"No resistance fits: {lo_b.title.lower()} needs at least {eng(_ohms(lo_b), 'Ω')} "
+            f"but {hi_b.title.lower()} allows at most {eng(_ohms(hi_b), 'Ω')}."
+        )
+    hard_bad = [b for b in bounds if b.hard and _violated(b, r_lo, r_hi)]
+    if hard_bad:
+        b = max(hard_bad, key=lambda x: _shortfall(x, r_lo, r_hi))
+        side = "below the minimum" if b.kind is BoundKind.MIN else "above the maximum"
+        return Verdict.FAIL, (
+            f"{fitted}, {side} of {eng(_ohms(b), 'Ω')} from {b.title.lower()} ({b.constraint})."
+        )
+    bad_checks = [c for c in checks if c.hard and c.ok is False]
+    if bad_checks:
+        c = bad_checks[0]
+        return Verdict.FAIL, f"{c.title} fails: {c.substituted} ({c.constraint})."
+    if missing:
+        m = missing[0]
+        more = f" (and {len(missing) - 1} more)" if len(missing) > 1 else ""
+        return Verdict.INCOMPLETE, f"Cannot judge yet: {m.what} is unknown{more}; {m.hint}."
+    soft_bad = [b for b in bounds if not b.hard and _violated(b, r_lo, r_hi)]
+    soft_bad_checks = [c for c in checks if not c.hard and c.ok is False]
+    if soft_bad:
+        b = soft_bad[0]
+        side = "below" if b.kind is BoundKind.MIN else "above"
+        return Verdict.MARGINAL, (
+            f"Hard limits are met, but {fitted}, {side} the {b.title.lower()} "
+            f"limit of {eng(_ohms(b), 'Ω')}."
+        )
+    if soft_bad_checks:
+        c = soft_bad_checks[0]
+        return Verdict.MARGINAL, f"Hard limits are met, but {c.title.lower()} is missed."
+    need = network.rules.margin_ratio
+    threshold = DEFAULT_MARGIN_RATIO if need is None else need.magnitude("")
+    edges = [(r, e) for r, e in zip(margins, (lo_b, hi_b), strict=True) if r is not None and e]
+    if edges:
+        ratio, edge = min(edges, key=lambda e: e[0])
+        if ratio < threshold:
+            what = "minimum" if edge.kind is BoundKind.MIN else "maximum"
+            return Verdict.MARGINAL, (
+                f"Hard limits are met, but {fitted}, only {pct(ratio)} inside the "
+                f"{eng(_ohms(edge), 'Ω')} {what} from {edge.title.lower()}; "
+                f"the rules ask for {pct(threshold)}."
+            )
+        return Verdict.PASS, f"{fitted}, at least {pct(ratio)} inside the window."
+    return Verdict.PASS, f"{fitted}; no constraint limits the resistance on this net."
+
+
+def _shortfall(b: Bound, r_lo: float, r_hi: float) -> float:
+    """How far (as a ratio) the band overshoots a bound: the worst violation is reported."""
+    return _ohms(b) / r_lo if b.kind is BoundKind.MIN else r_hi / max(_ohms(b), 1e-300)
+
+
+def recommend(
+    network: PullNetwork,
+    window: tuple[float | None, float | None],
+    *,
+    soft: Iterable[Bound] = (),
+) -> Recommendation:
+    """E-series values whose whole band fits ``window``, and the pick by the rules' policy.
+
+    The band uses the fitted resistor's tolerance and TCR (the part the designer
+    buys), so the list answers "which value of this part would fit". An open side
+    of the window is closed at :data:`OPEN_TOP_OHMS` / :data:`OPEN_BOTTOM_OHMS`.
+    Soft bounds narrow the pick (not the list) when some candidate meets them.
+    Policies: ``centre`` picks the candidate nearest the geometric centre of the
+    (soft-narrowed) window on a log scale; ``low-current`` picks the largest.
+    Raises :class:`~pullproof.errors.RulesError` for an unknown series or policy.
+    """
+    rules = network.rules
+    soft = list(soft)
+    lo, hi = window
+    if lo is None and hi is None:
+        raise ValueError("recommend() needs at least one side of the window")
+    if lo is None:
+        assert hi is not None
+        lo = min(OPEN_BOTTOM_OHMS, hi / 10)
+    if hi is None:
+        hi = max(OPEN_TOP_OHMS, 10 * lo)
+    lo = max(lo, 1e-3)  # a zero minimum (no power limit) still needs a positive query
+    r_lo1, r_hi1 = band(network.resistor, rules, 1.0)  # band of a 1 Ω part: the scale factors
+    try:
+        cands = eseries.values_between(rules.series, lo / r_lo1, hi / r_hi1) if hi > 0 else []
+    except ValueError as exc:
+        raise RulesError(f"rules key 'series': {exc}") from None
+    if rules.policy not in ("centre", "low-current"):
+        raise RulesError(
+            f"rules key 'policy': unknown policy {rules.policy!r}; expected centre or low-current"
+        )
+    tol = network.resistor.tolerance.magnitude("")
+    if not cands:
+        return Recommendation(
+            rules.series,
+            tol,
+            (),
+            None,
+            rules.policy,
+            f"No {rules.series} value at ±{pct(tol)} fits the window "
+            f"{eng(lo, 'Ω')}–{eng(hi, 'Ω')}; use a tighter tolerance or a finer series.",
+        )
+    s_lo = max([lo, *(_ohms(b) for b in soft if b.kind is BoundKind.MIN)])
+    s_hi = min([hi, *(_ohms(b) for b in soft if b.kind is BoundKind.MAX)])
+    preferred = [
+        c for c in cands if c * r_lo1 >= s_lo * (1 - _REL) and c * r_hi1 <= s_hi * (1 + _REL)
+    ]
+    pool, (c_lo, c_hi) = (preferred, (s_lo, s_hi)) if preferred else (cands, (lo, hi))
+    if rules.policy == "low-current":
+        pick = pool[-1]
+        why = f"the largest {rules.series} value whose band fits: least current"
+    else:
+        centre = math.sqrt(c_lo * c_hi)
+        pick = min(pool, key=lambda c: (abs(math.log(c / centre)), c))
+        why = f"the {rules.series} value nearest the window's geometric centre {eng(centre, 'Ω')}"
+    note = "" if preferred or not soft else " (no value meets the preferred range)"
+    return Recommendation(
+        rules.series,
+        tol,
+        tuple(cands),
+        pick,
+        rules.policy,
+        f"{eng(pick, 'Ω')} is {why}{note}.",
+    )
