@@ -176,8 +176,6 @@ class _Builder:
                         child = children.get(a)
                         if child is not None:
                             lists.append([("L", child.index, m) for m in bus_members(name)])
-                        if not any(kind == "label" for kind, _, _ in items):
-                            lists.append([("L", inst.index, m) for m in bus_members(name)])
                 for other in lists[1:]:
                     for x, y in zip(lists[0], other, strict=False):
                         self.join.union(x, y)

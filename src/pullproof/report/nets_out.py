@@ -45,9 +45,9 @@ def nets_table(circuit: Circuit) -> str:
         f"{len(circuit.parts)} part(s), {len(circuit.nets)} net(s)",
         "",
     ]
-    width = max((len(n.name) for n in circuit.nets), default=0)
+    width = max((len(n.name) + 8 * n.power for n in circuit.nets), default=0)
     for net in circuit.nets:
-        tag = " [power]" if net.power else ""
+        tag = f"{net.name} [power]" if net.power else net.name
         pins = " ".join(f"{m.ref}.{m.pin}" + (f"({m.name})" if m.name else "") for m in net.members)
-        lines.append(f"{net.name:<{width}}{tag}  {pins}")
+        lines.append(f"{tag:<{width}}  {pins}")
     return "\n".join(lines) + "\n"
