@@ -1,0 +1,405 @@
+"""Read logic-family and part-library input data (TOML) into input models.
+
+The syntax is documented in the header of every file in ``families/data``; a
+user part library uses the same keys (see :mod:`pullproof.families.library`).
+An :class:`InputModel` turns a family's tables into
+:class:`~pullproof.network.InputLevels` at any supply voltage: rows that hold
+over a supply range apply as written, and between rows values are linearly
+interpolated (the worst of two rows is taken where rows meet).
+"""
+
+from __future__ import annotations
+
+import re
+import tomllib
+from collections.abc import Mapping
+from dataclasses import dataclass, field, replace
+from functools import cache
+from importlib import resources
+from pathlib import Path
+from types import MappingProxyType
+from typing import Any
+
+from ..errors import ValueParseError
+from ..network import InputLevels
+from ..provenance import Origin, Provenance, Sourced, Status
+from ..units import Q_, parse_capacitance, parse_current, parse_time, parse_voltage
+
+__all__ = [
+    "STATUS_WORDS",
+    "Family",
+    "InputModel",
+    "LevelRow",
+    "VoltageExpr",
+    "family_from_table",
+    "load_families",
+]
+
+CHECK = "check the datasheet of the part you fit"
+STATUS_WORDS: Mapping[str, Status] = MappingProxyType(
+    {
+        "confirmed": Status.CONFIRMED,
+        "from memory": Status.FROM_MEMORY,
+        "common practice": Status.COMMON_PRACTICE,
+        "user": Status.USER,
+        "example": Status.USER,
+    }
+)
+_STATUS_KEYS = frozenset(
+    {"supply", "levels", "schmitt", "i_high", "i_low", "c_in", "v_in_max", "transition"}
+)
+_LEVEL_KEYS = ("vih_min", "vil_max")
+_SCHMITT_KEYS = ("vt_plus_min", "vt_plus_max", "vt_minus_min", "vt_minus_max")
+# Which way is "worse" for each tabulated key where two rows meet.
+_WORST_IS_MAX = frozenset({"vih_min", "vt_plus_max", "vt_minus_max"})
+
+_VEXPR = re.compile(
+    r"""
+    \s*(?:
+        (?P<k> \d+(?:\.\d+)? ) \s* \*? \s* VDD          # 0.65 VDD : fraction of the supply
+      | VDD \s* (?: (?P<sign> [+-] ) \s* (?P<off> [^\s].* ) )?   # VDD, VDD+0.5V
+      | (?P<abs> .+ )                                  # 1.5V
+    )\s*$
+    """,
+    re.VERBOSE,
+)
+
+
+@dataclass(frozen=True)
+class VoltageExpr:
+    """A voltage that may depend on the supply: ``k × VDD + offset`` volts."""
+
+    k: float
+    offset: float  # V
+    text: str
+
+    @classmethod
+    def parse(cls, text: str, *, field: str, part: str) -> VoltageExpr:
+        m = _VEXPR.match(text)
+        if m is None:  # pragma: no cover - the last branch matches anything non-blank
+            raise ValueParseError(text, expected="a voltage, 'k VDD' or 'VDD±x V'", field=field)
+        if m.group("k") is not None:
+            return cls(float(m.group("k")), 0.0, text)
+        if m.group("abs") is None:
+            offset = 0.0
+            if m.group("off") is not None:
+                offset = parse_voltage(m.group("off"), field=field, part=part).to("V").magnitude
+                offset = -offset if m.group("sign") == "-" else offset
+            return cls(1.0, float(offset), text)
+        return cls(0.0, float(parse_voltage(text, field=field, part=part).to("V").magnitude), text)
+
+    def at(self, vdd: float) -> float:
+        return self.k * vdd + self.offset
+
+
+@dataclass(frozen=True)
+class LevelRow:
+    """One table row: the supply span where it holds and its values (volts or seconds)."""
+
+    vdd_lo: float
+    vdd_hi: float
+    values: Mapping[str, VoltageExpr | float]  # float = seconds, or seconds per volt
+    per_volt: frozenset[str] = frozenset()  # keys given per volt of supply ("10ns/V")
+
+    def value(self, key: str, vdd: float) -> float | None:
+        v = self.values.get(key)
+        if v is None:
+            return None
+        if isinstance(v, VoltageExpr):
+            return v.at(vdd)
+        return v * vdd if key in self.per_volt else v
+
+
+@dataclass(frozen=True)
+class Family:
+    """A logic family's input data and where every number came from."""
+
+    name: str
+    title: str
+    standard: str
+    file: str
+    status: Mapping[str, Status]  # per key group, see _STATUS_KEYS
+    note: str
+    supply: tuple[float, float]  # V
+    v_in_max: VoltageExpr | None
+    i_high: Any = None  # A, over temperature
+    i_low: Any = None
+    i_high_25c: Any = None
+    i_low_25c: Any = None
+    c_in: Any = None
+    levels: tuple[LevelRow, ...] = ()
+    schmitt: tuple[LevelRow, ...] = ()
+    origin: Origin = Origin.FAMILY
+    extra: Mapping[str, Any] = field(default_factory=lambda: MappingProxyType({}))
+
+    def source(self, key: str, detail: str = "") -> Provenance:
+        """The provenance of one number of this family."""
+        where = f"family {self.name}, {self.standard}"
+        if self.origin is Origin.PART_LIBRARY:
+            where = f"part library entry {self.name} ({self.file})"
+        reason = "; ".join(p for p in (detail, self.note) if p)
+        return Provenance(self.origin, where, self.status.get(key, Status.USER), reason)
+
+    def breakpoints(self) -> tuple[float, ...]:
+        """Every supply voltage where a table row starts or ends, inside the supply range."""
+        lo, hi = self.supply
+        points = {lo, hi}
+        for row in (*self.levels, *self.schmitt):
+            points.update(p for p in (row.vdd_lo, row.vdd_hi) if lo <= p <= hi)
+        return tuple(sorted(points))
+
+    def model(self, *, schmitt: bool = False) -> InputModel:
+        return InputModel(self, schmitt=schmitt)
+
+
+def _lookup(rows: tuple[LevelRow, ...], key: str, vdd: float) -> tuple[float, str] | None:
+    """The value of ``key`` at ``vdd`` and how it was found (row, worst of rows, interpolated)."""
+    rows = tuple(r for r in rows if key in r.values)
+    if not rows:
+        return None
+    pick = max if key in _WORST_IS_MAX else min
+    inside = [r for r in rows if r.vdd_lo - 1e-9 <= vdd <= r.vdd_hi + 1e-9]
+    if inside:
+        values = [v for r in inside if (v := r.value(key, vdd)) is not None]
+        return pick(values), ""
+    below = [r for r in rows if r.vdd_hi < vdd]
+    above = [r for r in rows if r.vdd_lo > vdd]
+    if not below or not above:
+        return None  # outside the table: no extrapolation
+    lo = max(below, key=lambda r: r.vdd_hi)
+    hi = min(above, key=lambda r: r.vdd_lo)
+    v_lo, v_hi = lo.value(key, lo.vdd_hi), hi.value(key, hi.vdd_lo)
+    if v_lo is None or v_hi is None:  # pragma: no cover - rows were filtered on key
+        return None
+    t = (vdd - lo.vdd_hi) / (hi.vdd_lo - lo.vdd_hi)
+    how = f"interpolated between {lo.vdd_hi:g} V and {hi.vdd_lo:g} V"
+    return v_lo + t * (v_hi - v_lo), how
+
+
+@dataclass(frozen=True)
+class InputModel:
+    """A logic input's data, ready to be evaluated at any supply voltage of its own.
+
+    ``overrides`` holds values written on the part itself (fields), which replace the
+    family's at every supply; ``internal_pull`` an internal pull range (min, max) in ohms.
+    """
+
+    family: Family
+    schmitt: bool = False
+    overrides: Mapping[str, Sourced] = field(default_factory=lambda: MappingProxyType({}))
+    internal_pull: tuple[Sourced, Sourced] | None = None
+    room_temperature_only: bool = False
+
+    @property
+    def supply_range(self) -> tuple[Sourced, Sourced]:
+        lo, hi = self.family.supply
+        src = self.family.source("supply")
+        return Sourced(Q_(lo, "V"), src), Sourced(Q_(hi, "V"), src)
+
+    @property
+    def breakpoints(self) -> tuple[float, ...]:
+        """Supply voltages (V) where the tables change: evaluate there and at the corners."""
+        return self.family.breakpoints()
+
+    @property
+    def five_volt_tolerant(self) -> bool:
+        """True when the input accepts 5.5 V even at the family's lowest supply."""
+        v = self.family.v_in_max
+        return v is not None and v.at(self.family.supply[0]) >= 5.5 - 1e-9
+
+    def with_overrides(self, overrides: Mapping[str, Sourced]) -> InputModel:
+        merged = dict(self.overrides)
+        merged.update(overrides)
+        return replace(self, overrides=MappingProxyType(merged))
+
+    def at(self, vdd: Any) -> InputLevels:
+        """The guaranteed levels and currents at supply ``vdd`` (a Sourced, quantity or volts)."""
+        if isinstance(vdd, Sourced):
+            vdd_s = vdd
+        else:
+            q = vdd if hasattr(vdd, "to") else Q_(float(vdd), "V")
+            vdd_s = Sourced(q, Provenance(Origin.DERIVED, "supply corner", Status.USER))
+        v = float(vdd_s.value.to("V").magnitude)
+        fam = self.family
+        out: dict[str, Sourced | None] = {}
+        lo, hi = fam.supply
+        outside = "" if lo - 1e-9 <= v <= hi + 1e-9 else f"supply {v:g} V outside {lo:g}–{hi:g} V"
+        for key in _LEVEL_KEYS:
+            out[key] = self._volts(fam.levels, key, v, "levels", outside)
+        for key in _SCHMITT_KEYS:
+            out[key] = (
+                self._volts(fam.schmitt, key, v, "schmitt", outside) if self.schmitt else None
+            )
+        if self.schmitt:
+            # A Schmitt input is only guaranteed high above VT+max and low below VT-min.
+            if out["vt_plus_max"] is not None:
+                out["vih_min"] = out["vt_plus_max"]
+            if out["vt_minus_min"] is not None:
+                out["vil_max"] = out["vt_minus_min"]
+        found = _lookup(fam.levels, "transition", v)
+        out["max_transition"] = None
+        if found is not None and not self.schmitt:
+            out["max_transition"] = Sourced(
+                Q_(found[0], "s"), fam.source("transition", _join(found[1], outside))
+            )
+        hot = not self.room_temperature_only
+        for key in ("i_high", "i_low"):
+            value = getattr(fam, key if hot or getattr(fam, f"{key}_25c") is None else f"{key}_25c")
+            out[key] = None if value is None else Sourced(value, fam.source(key, outside))
+        out["c_in"] = None if fam.c_in is None else Sourced(fam.c_in, fam.source("c_in"))
+        out["v_in_max"] = None
+        if fam.v_in_max is not None:
+            out["v_in_max"] = Sourced(
+                Q_(fam.v_in_max.at(v), "V"), fam.source("v_in_max", fam.v_in_max.text)
+            )
+        for key, value in self.overrides.items():
+            if key in out:
+                out[key] = value
+        return InputLevels(vdd=vdd_s, **out)
+
+    def _volts(
+        self, rows: tuple[LevelRow, ...], key: str, v: float, group: str, outside: str
+    ) -> Sourced | None:
+        found = _lookup(rows, key, v)
+        if found is None:
+            return None
+        return Sourced(Q_(found[0], "V"), self.family.source(group, _join(found[1], outside)))
+
+
+def _join(*parts: str) -> str:
+    return "; ".join(p for p in parts if p)
+
+
+# ---------------------------------------------------------------- reading TOML tables
+
+
+def _status(word: Any, where: str) -> Status:
+    if not isinstance(word, str) or word not in STATUS_WORDS:
+        raise ValueParseError(
+            str(word), expected=f"a status: {', '.join(STATUS_WORDS)}", field=where
+        )
+    return STATUS_WORDS[word]
+
+
+def _span(text: Any, field: str, part: str) -> tuple[float, float]:
+    if isinstance(text, str):
+        v = float(parse_voltage(text, field=field, part=part).to("V").magnitude)
+        return v, v
+    if isinstance(text, list) and len(text) == 2 and all(isinstance(t, str) for t in text):
+        lo = float(parse_voltage(text[0], field=field, part=part).to("V").magnitude)
+        hi = float(parse_voltage(text[1], field=field, part=part).to("V").magnitude)
+        if lo <= hi:
+            return lo, hi
+    raise ValueParseError(str(text), expected='a voltage or a range ["2.3V", "2.7V"]', field=field)
+
+
+def _row(table: Any, keys: tuple[str, ...], field: str, part: str) -> LevelRow:
+    if not isinstance(table, dict) or "vdd" not in table:
+        raise ValueParseError(str(table), expected="a table with vdd = …", field=field, part=part)
+    lo, hi = _span(table["vdd"], f"{field}.vdd", part)
+    values: dict[str, VoltageExpr | float] = {}
+    per_volt: set[str] = set()
+    for key, text in table.items():
+        if key == "vdd":
+            continue
+        name = f"{field}.{key}"
+        if not isinstance(text, str):
+            raise ValueParseError(str(text), expected="a quoted value", field=name, part=part)
+        if key in keys:
+            values[key] = VoltageExpr.parse(text, field=name, part=part)
+        elif key == "transition":
+            body = text.strip()
+            if body.endswith("/V"):
+                per_volt.add(key)
+                body = body[:-2]
+            values[key] = float(parse_time(body, field=name, part=part).to("s").magnitude)
+        else:
+            raise ValueParseError(key, expected=f"one of vdd, {', '.join(keys)}", field=name)
+    return LevelRow(lo, hi, MappingProxyType(values), frozenset(per_volt))
+
+
+_FAMILY_KEYS = frozenset(
+    {
+        "title", "standard", "status", "status_of", "note", "supply", "v_in_max",
+        "i_high", "i_low", "i_high_25c", "i_low_25c", "c_in", "levels", "schmitt",
+    }
+)  # fmt: skip
+
+
+def family_from_table(
+    name: str,
+    table: Mapping[str, Any],
+    file: str,
+    *,
+    origin: Origin = Origin.FAMILY,
+    extra_keys: frozenset[str] = frozenset(),
+) -> Family:
+    """Build a :class:`Family` from one TOML table; ``extra_keys`` are kept in ``extra``.
+
+    Raises:
+        ValueParseError: a value cannot be read, or a key is unknown.
+    """
+    part = f"{file} [{name}]"
+    for key in table:
+        if key not in _FAMILY_KEYS and key not in extra_keys:
+            raise ValueParseError(key, expected="a known key (see the file header)", part=part)
+    default = _status(table.get("status", "user"), f"{name}.status")
+    statuses = dict.fromkeys(_STATUS_KEYS, default)
+    for key, word in dict(table.get("status_of", {})).items():
+        if key not in _STATUS_KEYS:
+            raise ValueParseError(key, expected=f"one of {', '.join(sorted(_STATUS_KEYS))}")
+        statuses[key] = _status(word, f"{name}.status_of.{key}")
+    if "supply" not in table:
+        raise ValueParseError("", expected='supply = ["min V", "max V"]', field="supply", part=part)
+    lo, hi = _span(table["supply"], "supply", part)
+
+    def current(key: str) -> Any:
+        text = table.get(key)
+        if text is None:
+            return None
+        q = parse_current(str(text), field=key, part=part)
+        if q.magnitude < 0:
+            raise ValueParseError(str(text), expected="a non-negative magnitude", field=key)
+        return q
+
+    note = str(table.get("note", ""))
+    if origin is Origin.FAMILY and CHECK not in note:
+        note = _join(note, CHECK)
+    v_in_max = table.get("v_in_max")
+    return Family(
+        name=name,
+        title=str(table.get("title", name)),
+        standard=str(table.get("standard", "")),
+        file=file,
+        status=MappingProxyType(statuses),
+        note=note,
+        supply=(lo, hi),
+        v_in_max=None
+        if v_in_max is None
+        else VoltageExpr.parse(str(v_in_max), field="v_in_max", part=part),
+        i_high=current("i_high"),
+        i_low=current("i_low"),
+        i_high_25c=current("i_high_25c"),
+        i_low_25c=current("i_low_25c"),
+        c_in=None
+        if table.get("c_in") is None
+        else parse_capacitance(str(table["c_in"]), field="c_in", part=part),
+        levels=tuple(_row(r, _LEVEL_KEYS, "levels", part) for r in table.get("levels", ())),
+        schmitt=tuple(_row(r, _SCHMITT_KEYS, "schmitt", part) for r in table.get("schmitt", ())),
+        origin=origin,
+        extra=MappingProxyType({k: v for k, v in table.items() if k in extra_keys}),
+    )
+
+
+@cache
+def load_families() -> Mapping[str, Family]:
+    """Every built-in family, keyed by name (e.g. "HC", "LS", "4000B", "LVCMOS33")."""
+    out: dict[str, Family] = {}
+    data = resources.files("pullproof.families") / "data"
+    for entry in sorted(data.iterdir(), key=lambda e: e.name):
+        if not entry.name.endswith(".toml"):
+            continue
+        doc = tomllib.loads(entry.read_text(encoding="utf-8"))
+        for name, table in doc.get("family", {}).items():
+            out[name] = family_from_table(name, table, Path(entry.name).name)
+    return MappingProxyType(out)

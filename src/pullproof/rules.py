@@ -1,0 +1,448 @@
+"""The project rules file (``pullproof.toml`` beside the root schematic) with documented defaults.
+
+Every value carries its provenance: the rules key with file and line, or a named
+default with its reason. Values are written with their units as text ("5%",
+"3V3", "10ms", "100pF", "-40°C"); see :data:`KEYS` for every key, its default and
+why. Rails named like ``+5V``, ``3V3``, ``VCC_1V8``, ``-12V`` or ``VBUS`` need
+no entry: their voltage is read from the name.
+"""
+
+from __future__ import annotations
+
+import difflib
+import fnmatch
+import re
+import tomllib
+from collections.abc import Callable, Mapping
+from dataclasses import dataclass, field
+from pathlib import Path
+from types import MappingProxyType
+from typing import Any
+
+from .errors import Location, RulesError, ValueParseError
+from .eseries import SERIES
+from .provenance import Origin, Provenance, Sourced, Status
+from .units import (
+    Q_,
+    parse_capacitance,
+    parse_current,
+    parse_percent,
+    parse_power,
+    parse_resistance,
+    parse_tcr,
+    parse_temperature,
+    parse_time,
+    parse_voltage,
+    parse_voltage_ac,
+)
+
+__all__ = ["KEYS", "RULES_FILE", "NetRules", "RailSpec", "Rules", "load_rules"]
+
+RULES_FILE = "pullproof.toml"
+
+
+@dataclass(frozen=True)
+class Key:
+    """One rules key: how to read it, its default text (or None) and why that default."""
+
+    kind: str
+    default: str | None
+    reason: str
+
+
+# Every key of the rules file. The README table is generated from this mapping.
+KEYS: Mapping[str, Key] = MappingProxyType(
+    {
+        "rail_tolerance": Key("percent", "5%", "common regulator accuracy; set rails you know"),
+        "margin": Key("margin", "0.1V", "noise kept clear of each threshold, common practice"),
+        "derating": Key("percent", "50%", "resistors run at half rated power, common practice"),
+        "series": Key("series", "E24", "the series most stocked at 1 % and 5 %"),
+        "policy": Key("policy", "centre", "geometric centre of the window leaves most room"),
+        "current_budget": Key("current", None, "no budget unless the design is battery-powered"),
+        "bounce": Key("time", None, "only needed when a capacitor debounces a contact"),
+        "edge_time": Key("time", None, "the family transition limit applies when unset"),
+        "mains_voltage": Key("voltage", "230VAC", "the most common mains supply; set yours"),
+        "mains_patterns": Key(
+            "patterns", "*MAINS*,*230V*,*120V*,*LINE*,AC_L,AC_N", "names designers give mains"
+        ),
+        "ground": Key("patterns", "", "extra ground net names beyond the built-in ones"),
+        "resistor.tolerance": Key("percent", "5%", "E24 customary tolerance (IEC 60063)"),
+        "resistor.tcr": Key("tcr", "200ppm/K", "thick-film chip resistors, common practice"),
+        "resistor.power": Key("power", None, "taken from the footprint size when known"),
+        "resistor.size": Key("size", None, "taken from the footprint when known"),
+        "temperature.min": Key("temperature", "0°C", "commercial range, common practice"),
+        "temperature.max": Key("temperature", "70°C", "commercial range, common practice"),
+        "temperature.ref": Key("temperature", "25°C", "tolerances are specified at 25 °C"),
+        "preferred.min": Key("resistance", "1k", "below 1 kΩ a pull wastes current"),
+        "preferred.max": Key("resistance", "1M", "above 1 MΩ leakage and noise dominate"),
+        "i2c.mode": Key("i2c", "", "no I2C unless a [[net]] entry or a net name says so"),
+        "i2c.bus_capacitance": Key("capacitance", "200pF", "a short bus on one board"),
+    }
+)
+_NET_KEYS = frozenset(
+    {"match", "margin", "i2c", "bus_capacitance", "bounce", "edge_time", "current_budget"}
+)
+_SECTIONS = frozenset({"resistor", "temperature", "preferred", "i2c"})
+_GROUNDS = ("GND", "GNDA", "GNDD", "GNDPWR", "GNDREF", "AGND", "DGND", "PGND", "VSS", "0V", "EARTH")
+_GROUND_PATTERNS = ("GND*", "*_GND", "VSS*", "EARTH*", "0V", "CHASSIS*")
+
+
+@dataclass(frozen=True)
+class RailSpec:
+    """A supply rail or ground: name, nominal and limits (None when the name gives no voltage)."""
+
+    name: str
+    nominal: Sourced | None
+    v_min: Sourced | None
+    v_max: Sourced | None
+    ground: bool = False
+
+
+@dataclass(frozen=True)
+class NetRules:
+    """Rules that apply to one net after ``[[net]]`` overrides."""
+
+    margin: Sourced  # V, or a fraction of the supply (dimensionless)
+    i2c_mode: str
+    bus_capacitance: Sourced | None
+    bounce: Sourced | None
+    edge_time: Sourced | None
+    current_budget: Sourced | None
+
+
+@dataclass(frozen=True)
+class Rules:
+    """The project rules, each value Sourced."""
+
+    file: str  # "" when no rules file was found
+    values: Mapping[str, Sourced | str | None]
+    rails: Mapping[str, RailSpec] = field(default_factory=lambda: MappingProxyType({}))
+    nets: tuple[tuple[str, Mapping[str, Sourced | str]], ...] = ()
+
+    def get(self, key: str) -> Any:
+        """The value of a rules key (Sourced, a word, or None when unset and no default)."""
+        return self.values[key]
+
+    @property
+    def series(self) -> str:
+        return str(self.values["series"]).upper()
+
+    @property
+    def policy(self) -> str:
+        return str(self.values["policy"])
+
+    def is_ground(self, net_name: str) -> bool:
+        name = _bare(net_name).upper()
+        extra = str(self.values["ground"] or "")
+        patterns = (*_GROUND_PATTERNS, *(p.strip().upper() for p in extra.split(",") if p.strip()))
+        return name in _GROUNDS or any(fnmatch.fnmatchcase(name, p) for p in patterns)
+
+    def rail(self, net_name: str) -> RailSpec | None:
+        """The rail a net name stands for: rules entry, ground name, or a voltage in the name."""
+        bare = _bare(net_name)
+        if bare in self.rails:
+            return self.rails[bare]
+        if self.is_ground(net_name):
+            zero = Sourced(Q_(0.0, "V"), _schematic(f"ground net {bare}"))
+            return RailSpec(bare, zero, zero, zero, ground=True)
+        volts = rail_voltage_from_name(bare)
+        if volts is None:
+            if re.fullmatch(r"(?i)V(CC|DD|IO|DDIO|BAT|IN|SYS)\w*", bare):
+                return RailSpec(bare, None, None, None)
+            return None
+        tol = self.values["rail_tolerance"]
+        assert isinstance(tol, Sourced)
+        frac = tol.magnitude("")
+        src = _schematic(f"voltage read from the net name {bare}")
+        nominal = Sourced(Q_(volts, "V"), src)
+        lo, hi = sorted((volts * (1 - frac), volts * (1 + frac)))
+        derived = Provenance(Origin.DERIVED, f"{bare} ± {tol.source.where}", tol.source.status)
+        return RailSpec(bare, nominal, Sourced(Q_(lo, "V"), derived), Sourced(Q_(hi, "V"), derived))
+
+    def is_mains(self, net_name: str) -> bool:
+        """True when the net name matches a mains pattern (case-insensitive glob)."""
+        name = _bare(net_name).upper()
+        patterns = str(self.values["mains_patterns"] or "").split(",")
+        return any(fnmatch.fnmatchcase(name, p.strip().upper()) for p in patterns if p.strip())
+
+    def for_net(self, net_name: str) -> NetRules:
+        """The rules for one net: defaults, then every matching ``[[net]]`` entry in order."""
+        merged: dict[str, Any] = {
+            "margin": self.values["margin"],
+            "i2c": self.values["i2c.mode"],
+            "bus_capacitance": self.values["i2c.bus_capacitance"],
+            "bounce": self.values["bounce"],
+            "edge_time": self.values["edge_time"],
+            "current_budget": self.values["current_budget"],
+        }
+        name = _bare(net_name).upper()
+        if not merged["i2c"] and re.search(r"(^|[^A-Z])(I2C|SDA|SCL)", name):
+            merged["i2c"] = "standard"  # named like an I2C line: check as Standard-mode
+        for pattern, entry in self.nets:
+            if fnmatch.fnmatchcase(name, pattern.upper()):
+                merged.update(entry)
+        return NetRules(
+            margin=merged["margin"],
+            i2c_mode=str(merged["i2c"] or ""),
+            bus_capacitance=merged["bus_capacitance"] if merged["i2c"] else None,
+            bounce=merged["bounce"],
+            edge_time=merged["edge_time"],
+            current_budget=merged["current_budget"],
+        )
+
+
+def _bare(net_name: str) -> str:
+    return net_name.rsplit("/", 1)[-1]
+
+
+def _schematic(where: str) -> Provenance:
+    return Provenance(Origin.SCHEMATIC, where, Status.USER)
+
+
+_RAIL_NAME = re.compile(
+    r"""
+    ^(?P<sign> [+-] )?
+    (?:
+        (?P<a> \d+ ) [V.P] (?P<b> \d+ ) V? [A-Z]*     # 3V3, 3.3V, 3P3, +3.3VP, 1V8
+      | (?P<c> \d+ ) V [A-Z]*                         # +5V, 12VA, 24V
+      | V (?P<d> \d+ ) P (?P<e> \d+ )                 # V3P3
+    )$
+    """,
+    re.VERBOSE,
+)
+
+
+def rail_voltage_from_name(name: str) -> float | None:
+    """The voltage a net name states (``+3V3`` → 3.3, ``VCC_1V8`` → 1.8, ``VBUS`` → 5.0)."""
+    upper = name.upper()
+    if upper in ("VBUS", "USB_VBUS", "VUSB"):
+        return 5.0  # USB bus power, common practice
+    for token in (upper, *re.split(r"[_\-\s]", upper)[1:], *re.split(r"[_\s]", upper)):
+        m = _RAIL_NAME.match(token)
+        if m is None:
+            continue
+        if m.group("a") is not None:
+            volts = float(f"{m.group('a')}.{m.group('b')}")
+        elif m.group("c") is not None:
+            volts = float(m.group("c"))
+        else:
+            volts = float(f"{m.group('d')}.{m.group('e')}")
+        return -volts if m.group("sign") == "-" else volts
+    return None
+
+
+# ------------------------------------------------------------------ reading the file
+
+
+def _margin(text: str, field: str) -> Any:
+    return parse_percent(text, field=field) if "%" in text else parse_voltage(text, field=field)
+
+
+def _word(allowed: tuple[str, ...]) -> Callable[[str, str], str]:
+    def read(text: str, field: str) -> str:
+        if text.lower() not in allowed:
+            raise ValueParseError(text, expected=f"one of {', '.join(allowed)}", field=field)
+        return text.lower()
+
+    return read
+
+
+def _size(text: str, field: str) -> str:
+    if not re.fullmatch(r"0201|0402|0603|0805|1206|1210|2010|2512", text):
+        raise ValueParseError(text, expected="a chip size such as 0603", field=field)
+    return text
+
+
+_READERS: Mapping[str, Callable[[str, str], Any]] = MappingProxyType(
+    {
+        "percent": lambda t, f: parse_percent(t, field=f),
+        "margin": _margin,
+        "current": lambda t, f: parse_current(t, field=f),
+        "time": lambda t, f: parse_time(t, field=f),
+        "voltage": lambda t, f: parse_voltage_ac(t, field=f)[0],
+        "tcr": lambda t, f: parse_tcr(t, field=f),
+        "power": lambda t, f: parse_power(t, field=f),
+        "temperature": lambda t, f: parse_temperature(t, field=f),
+        "resistance": lambda t, f: parse_resistance(t, field=f),
+        "capacitance": lambda t, f: parse_capacitance(t, field=f),
+        "series": _word(tuple(s.lower() for s in SERIES)),
+        "policy": _word(("centre", "low-current")),
+        "i2c": _word(("", "standard", "fast", "fast-plus")),
+        "size": _size,
+        "patterns": lambda t, f: t,
+    }
+)
+_WORDS = frozenset({"series", "policy", "i2c", "size", "patterns"})
+
+
+def _line_of(text: str, dotted: str) -> int:
+    """The line where a key is written (tomllib gives no positions): scan for it."""
+    parts = dotted.split(".")
+    last = re.escape(parts[-1])
+    section_line = 0
+    if len(parts) > 1:
+        head = re.escape(parts[0])
+        for i, line in enumerate(text.splitlines(), 1):
+            if re.match(rf"\s*\[\[?\s*{head}\s*\]", line):
+                section_line = i
+                break
+    for i, line in enumerate(text.splitlines(), 1):
+        if i >= section_line and re.match(rf"""\s*(?:[\w."']*\.)?["']?{last}["']?\s*=""", line):
+            return i
+    return max(section_line, 1)
+
+
+class _Reader:
+    def __init__(self, path: Path, text: str) -> None:
+        self.path = path
+        self.text = text
+
+    def error(self, dotted: str, message: str) -> RulesError:
+        return RulesError(message, Location(str(self.path), _line_of(self.text, dotted), 1))
+
+    def unknown(self, dotted: str, valid: list[str]) -> RulesError:
+        close = difflib.get_close_matches(dotted, valid, n=1)
+        hint = f"; did you mean {close[0]!r}?" if close else ""
+        return self.error(dotted, f"unknown rules key {dotted!r}{hint}")
+
+    def value(self, dotted: str, kind: str, raw: Any) -> Sourced | str:
+        if isinstance(raw, bool) or not isinstance(raw, str | int | float | list):
+            raise self.error(dotted, f'rules key {dotted!r}: write the value as text, e.g. "5%"')
+        if isinstance(raw, list):
+            raw = ",".join(str(x) for x in raw)
+        text = str(raw)
+        try:
+            parsed = _READERS[kind](text, dotted)
+        except ValueParseError as exc:
+            message = f"rules key {dotted!r}: cannot read {text!r}; expected {exc.expected}"
+            raise self.error(dotted, message) from None
+        if kind in _WORDS:
+            return str(parsed)
+        where = f"rules key {dotted} ({self.path.name}:{_line_of(self.text, dotted)})"
+        return Sourced(parsed, Provenance(Origin.RULES, where, Status.USER))
+
+
+def _flatten(doc: Mapping[str, Any]) -> dict[str, Any]:
+    flat: dict[str, Any] = {}
+    for key, value in doc.items():
+        if key in _SECTIONS and isinstance(value, dict):
+            for sub, inner in value.items():
+                flat[f"{key}.{sub}"] = inner
+        else:
+            flat[key] = value
+    return flat
+
+
+def load_rules(root: Path, explicit: Path | None = None) -> Rules:
+    """Read the rules for a root schematic: ``explicit``, else ``pullproof.toml`` beside ``root``.
+
+    No file means all defaults. Raises:
+        RulesError: malformed TOML (with tomllib's line and column), an unknown key (with the
+            closest valid key) or an unreadable value, each naming the file and line.
+    """
+    path = explicit if explicit is not None else Path(root).parent / RULES_FILE
+    if explicit is None and not path.is_file():
+        return _build(None, {})
+    try:
+        text = path.read_text(encoding="utf-8")
+    except (OSError, UnicodeDecodeError) as exc:
+        raise RulesError(f"cannot read rules file {path}: {exc}") from None
+    try:
+        doc = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        m = re.search(r"\(at line (\d+), column (\d+)\)", str(exc))
+        line, col = (int(m.group(1)), int(m.group(2))) if m else (1, 1)
+        message = re.sub(r"\s*\(at line.*\)$", "", str(exc))
+        raise RulesError(f"malformed TOML: {message}", Location(str(path), line, col)) from None
+    return _build(_Reader(path, text), doc)
+
+
+def _build(reader: _Reader | None, doc: Mapping[str, Any]) -> Rules:
+    flat = _flatten(doc)
+    values: dict[str, Sourced | str | None] = {}
+    valid = [*KEYS, "rails", "net"]
+    for dotted in flat:
+        if dotted not in KEYS and dotted not in ("rails", "net"):
+            assert reader is not None
+            raise reader.unknown(dotted, valid)
+    default_reader = _Reader(Path(RULES_FILE), "")
+    for dotted, key in KEYS.items():
+        if dotted in flat:
+            assert reader is not None
+            values[dotted] = reader.value(dotted, key.kind, flat[dotted])
+        elif key.default is None:
+            values[dotted] = None
+        else:
+            parsed = default_reader.value(dotted, key.kind, key.default)
+            if isinstance(parsed, Sourced):
+                src = Provenance(Origin.DEFAULT, f"default {dotted}", Status.DEFAULT, key.reason)
+                parsed = Sourced(parsed.value, src)
+            values[dotted] = parsed
+    rails = _rails(reader, flat.get("rails", {}), values)
+    nets = _nets(reader, flat.get("net", []))
+    return Rules(reader.path.name if reader else "", MappingProxyType(values), rails, nets)
+
+
+def _rails(reader: _Reader | None, table: Any, values: Mapping[str, Any]) -> Mapping[str, RailSpec]:
+    out: dict[str, RailSpec] = {}
+    if not table:
+        return MappingProxyType(out)
+    assert reader is not None
+    if not isinstance(table, dict):
+        raise reader.error("rails", "rules key 'rails': write a table, e.g. [rails] VCC = \"5V\"")
+    for name, spec in table.items():
+        dotted = f"rails.{name}"
+        entry = spec if isinstance(spec, dict) else {"nominal": spec}
+        for key in entry:
+            if key not in ("nominal", "tolerance"):
+                raise reader.unknown(
+                    f"{dotted}.{key}", [f"{dotted}.nominal", f"{dotted}.tolerance"]
+                )
+        nominal = reader.value(dotted, "voltage", entry.get("nominal", ""))
+        tol = (
+            reader.value(f"{dotted}.tolerance", "percent", entry["tolerance"])
+            if "tolerance" in entry
+            else values["rail_tolerance"]
+        )
+        assert isinstance(nominal, Sourced) and isinstance(tol, Sourced)
+        volts = nominal.magnitude("V")
+        frac = tol.magnitude("")
+        lo, hi = sorted((volts * (1 - frac), volts * (1 + frac)))
+        derived = Provenance(Origin.DERIVED, f"{nominal.source.where} ± {tol.source.where}")
+        out[name] = RailSpec(
+            name, nominal, Sourced(Q_(lo, "V"), derived), Sourced(Q_(hi, "V"), derived), volts == 0
+        )
+    return MappingProxyType(out)
+
+
+_NET_KINDS = MappingProxyType(
+    {
+        "margin": "margin",
+        "i2c": "i2c",
+        "bus_capacitance": "capacitance",
+        "bounce": "time",
+        "edge_time": "time",
+        "current_budget": "current",
+    }
+)
+
+
+def _nets(reader: _Reader | None, entries: Any) -> tuple[tuple[str, Mapping[str, Any]], ...]:
+    if not entries:
+        return ()
+    assert reader is not None
+    if not isinstance(entries, list):
+        raise reader.error("net", "rules key 'net': write [[net]] entries with match = \"…\"")
+    out = []
+    for entry in entries:
+        for key in entry:
+            if key not in _NET_KEYS:
+                raise reader.unknown(f"net.{key}", [f"net.{k}" for k in sorted(_NET_KEYS)])
+        pattern = entry.get("match")
+        if not isinstance(pattern, str) or not pattern:
+            raise reader.error("net", 'a [[net]] entry needs match = "NET-PATTERN"')
+        parsed = {
+            k: reader.value(f"net.{k}", _NET_KINDS[k], v) for k, v in entry.items() if k != "match"
+        }
+        out.append((pattern, MappingProxyType(parsed)))
+    return tuple(out)
