@@ -1,0 +1,130 @@
+"""Human number formatting for reports: engineering prefixes, percentages, windows.
+
+Reports never print a bare float: a value is shown with three significant
+digits, an SI prefix and its unit symbol ("4.7 kΩ", "1 µA", "5 %", "100 ppm/K").
+A non-breaking space joins number and unit so a printed table never splits them.
+"""
+
+from __future__ import annotations
+
+import math
+from typing import Any
+
+from ..provenance import Sourced
+from ..units import ureg
+
+__all__ = [
+    "NBSP",
+    "engineering",
+    "format_margin",
+    "format_ohms",
+    "format_percent",
+    "format_quantity",
+    "format_sourced",
+    "format_window",
+]
+
+NBSP = "\u00a0"
+
+# SI prefixes by power of a thousand; "µ" is U+00B5 as typographers and IEC 60027 print it.
+_PREFIXES = {-15: "f", -12: "p", -9: "n", -6: "µ", -3: "m", 0: "", 3: "k", 6: "M", 9: "G", 12: "T"}
+
+# Base units a quantity is converted to before it is given a prefix, with the symbol printed.
+_BASES: tuple[tuple[str, str], ...] = (
+    ("ohm", "Ω"),
+    ("volt", "V"),
+    ("ampere", "A"),
+    ("watt", "W"),
+    ("farad", "F"),
+    ("second", "s"),
+    ("hertz", "Hz"),
+)
+
+
+def _digits(value: float, sig: int = 3) -> str:
+    """``value`` with ``sig`` significant digits, trailing zeros dropped (1.50 → 1.5)."""
+    if value == 0:
+        return "0"
+    text = f"{value:.{sig}g}"
+    if "e" in text:  # %g switches to exponent form above 10**sig; print the integer
+        text = f"{value:.0f}"
+    return text.replace("-", "−")  # a real minus sign
+
+
+def engineering(value: float, unit: str, sig: int = 3) -> str:
+    """Format ``value`` (in the base ``unit``) with an SI prefix: (4700, "Ω") → "4.7 kΩ"."""
+    if math.isnan(value):
+        return "not a number"
+    if math.isinf(value):
+        return "∞" if value > 0 else "−∞"
+    if value == 0:
+        return f"0{NBSP}{unit}"
+    power = int(math.floor(math.log10(abs(value)) / 3) * 3)
+    power = max(min(power, 12), -15)
+    scaled = value / 10.0**power
+    # Rounding can carry into the next prefix (999.7 Ω → "1e+03 Ω"): step up instead.
+    if abs(float(f"{scaled:.{sig}g}")) >= 1000 and power < 12:
+        power += 3
+        scaled = value / 10.0**power
+    return f"{_digits(scaled, sig)}{NBSP}{_PREFIXES[power]}{unit}"
+
+
+def format_ohms(ohms: float | None) -> str:
+    """A resistance in ohms as "4.7 kΩ"; None (no limit known) as "—"."""
+    return "—" if ohms is None else engineering(ohms, "Ω")
+
+
+def format_percent(fraction: float, sig: int = 3) -> str:
+    """A fraction as a percentage: 0.05 → "5 %"."""
+    return f"{_digits(fraction * 100.0, sig)}{NBSP}%"
+
+
+def format_margin(margin: float | None) -> str:
+    """A relative margin (R_lo / min − 1) as a signed percentage, or "—" when unbounded."""
+    if margin is None:
+        return "—"
+    sign = "+" if margin >= 0 else ""
+    return f"{sign}{format_percent(margin)}"
+
+
+def format_window(window: tuple[float | None, float | None]) -> str:
+    """A (low, high) window: open ends print as 0 and ∞, a crossed window says so."""
+    lo, hi = window
+    left = "0" if lo is None else format_ohms(lo)
+    right = "∞" if hi is None else format_ohms(hi)
+    if lo is not None and hi is not None and lo > hi:
+        return f"empty ({left} > {right})"
+    return f"{left} … {right}"
+
+
+def format_quantity(value: Any) -> str:
+    """Format a pint quantity (or plain number) for a reader.
+
+    Dimensionless ratios print as percentages, temperature coefficients in
+    ppm/K, temperatures in °C, electrical quantities with an SI prefix. Any
+    other unit falls back to pint's own compact text.
+    """
+    if not hasattr(value, "to"):
+        return format_percent(float(value))
+    units = str(value.units)
+    if units in ("degree_Celsius", "kelvin"):
+        return f"{_digits(float(value.to(ureg.degC).magnitude))}{NBSP}°C"
+    if units in ("delta_degree_Celsius",):
+        return f"{_digits(float(value.to('kelvin').magnitude))}{NBSP}K"
+    if value.dimensionless:
+        return format_percent(float(value.to("").magnitude))
+    if value.check("1/[temperature]"):
+        return f"{_digits(float(value.to('1/K').magnitude) * 1e6)}{NBSP}ppm/K"
+    if value.check("[electric_potential]"):
+        volts = float(value.to("volt").magnitude)
+        if 0.1 <= abs(volts) < 1000:  # designers write 0.8 V and 230 V, not 800 mV
+            return f"{_digits(volts, 4)}{NBSP}V"
+    for base, symbol in _BASES:
+        if value.check(ureg(base).dimensionality):
+            return engineering(float(value.to(base).magnitude), symbol)
+    return f"{value:~P}"
+
+
+def format_sourced(value: Sourced) -> str:
+    """Format a :class:`Sourced` value's quantity (the provenance is shown separately)."""
+    return format_quantity(value.value)
