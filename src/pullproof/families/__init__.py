@@ -7,5 +7,27 @@
 from __future__ import annotations
 
 from .loader import Family, InputModel, load_families
+from .match import (
+    FIELDS,
+    PartInfo,
+    PartKind,
+    PartLibrary,
+    classify,
+    family_from_name,
+    load_part_library,
+    resolve_part,
+)
 
-__all__ = ["Family", "InputModel", "load_families"]
+__all__ = [
+    "FIELDS",
+    "Family",
+    "InputModel",
+    "PartInfo",
+    "PartKind",
+    "PartLibrary",
+    "classify",
+    "family_from_name",
+    "load_families",
+    "load_part_library",
+    "resolve_part",
+]

@@ -1,0 +1,623 @@
+"""Which data applies to a placed part: fields first, then name patterns, then a part library.
+
+Order of precedence for a logic input: the field ``pullproof.family`` (and the
+individual fields ``pullproof.vih`` … which override single numbers), then a
+family recognised in the Value or library id (``74HC14``, ``SN74LS00N``,
+``CD4093B``, ``74LVC1G17``, ``MC14093``), then a user part-library entry, then
+"unknown part" reported as a :class:`~pullproof.network.Missing` (never a crash).
+Bad text in an explicit ``pullproof.*``/``Tolerance``/``Power``/``TCR`` field raises
+:class:`~pullproof.errors.ValueParseError`; an unreadable resistor Value is
+reported as missing data, because schematics often carry placeholder values.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import fnmatch
+import re
+import tomllib
+from collections.abc import Callable, Mapping
+from dataclasses import dataclass, field
+from enum import StrEnum
+from pathlib import Path
+from types import MappingProxyType
+from typing import Any
+
+from ..circuit import Part
+from ..errors import Location, ValueParseError
+from ..network import Missing
+from ..provenance import Origin, Provenance, Sourced, Status
+from ..rules import Rules
+from ..units import (
+    Q_,
+    ResistorText,
+    parse_capacitance,
+    parse_current,
+    parse_percent,
+    parse_power,
+    parse_resistance,
+    parse_resistor_text,
+    parse_tcr,
+    parse_time,
+    parse_voltage,
+)
+from .loader import Family, InputModel, family_from_table, load_families
+
+__all__ = [
+    "FIELDS",
+    "SIZES",
+    "FieldDoc",
+    "PartInfo",
+    "PartKind",
+    "PartLibrary",
+    "Ratings",
+    "ResistorInfo",
+    "classify",
+    "family_from_name",
+    "load_part_library",
+    "resolve_part",
+]
+
+
+@dataclass(frozen=True)
+class FieldDoc:
+    where: str
+    meaning: str
+    example: str
+
+
+# Every part field pullproof reads. The README table "Fields pullproof reads" is built from this.
+FIELDS: Mapping[str, FieldDoc] = MappingProxyType(
+    {
+        "Value": FieldDoc("any part", "resistance / capacitance / part number", "4k7 1% 0603"),
+        "Tolerance": FieldDoc("resistor", "resistance tolerance", "1%"),
+        "Power": FieldDoc("resistor", "rated power at 70 °C", "0.1W"),
+        "TCR": FieldDoc("resistor", "temperature coefficient", "100ppm/K"),
+        "Footprint": FieldDoc(
+            "resistor", "chip size read from the footprint name", "R_0603_1608Metric"
+        ),
+        "pullproof.role": FieldDoc("resistor", "force (pull) or skip (skip) judging", "skip"),
+        "pullproof.working_voltage": FieldDoc("resistor", "limiting element voltage", "50V"),
+        "pullproof.family": FieldDoc("logic IC", "logic family by name", "HC"),
+        "pullproof.schmitt": FieldDoc("logic IC", "inputs are Schmitt triggers", "yes"),
+        "pullproof.vih": FieldDoc("logic input", "V_IH,min (overrides family)", "2.0V"),
+        "pullproof.vil": FieldDoc("logic input", "V_IL,max (overrides family)", "0.8V"),
+        "pullproof.i_high": FieldDoc("logic input", "current into a pin held high", "1uA"),
+        "pullproof.i_low": FieldDoc("logic input", "current out of a pin held low", "0.4mA"),
+        "pullproof.v_in_max": FieldDoc("logic input", "highest voltage the pin tolerates", "5.5V"),
+        "pullproof.internal_pull": FieldDoc("MCU", "internal pull range min..max", "30k..50k"),
+        "pullproof.contact_max": FieldDoc("switch, relay", "largest contact current", "50mA"),
+        "pullproof.wetting": FieldDoc("switch, relay", "least contact (wetting) current", "1mA"),
+        "pullproof.bounce": FieldDoc("switch", "contact bounce time", "5ms"),
+        "pullproof.ctr_min": FieldDoc("optocoupler", "least current transfer ratio", "50%"),
+        "pullproof.ageing": FieldDoc("optocoupler", "CTR left at end of life", "50%"),
+        "pullproof.i_f": FieldDoc("optocoupler", "least LED forward current when on", "5mA"),
+        "pullproof.dark_current": FieldDoc("optocoupler", "output leakage when off", "100nA"),
+        "pullproof.vce_sat": FieldDoc("optocoupler", "output saturation voltage", "0.4V"),
+    }
+)
+
+
+class PartKind(StrEnum):
+    RESISTOR = "resistor"
+    CAPACITOR = "capacitor"
+    SWITCH = "switch"
+    RELAY = "relay"
+    OPTOCOUPLER = "optocoupler"
+    LED = "LED"
+    DIODE = "diode"
+    TRANSISTOR = "transistor"
+    LOGIC = "logic IC"
+    MCU = "microcontroller"
+    CONNECTOR = "connector"
+    OPAMP = "op-amp"
+    OTHER = "other"
+
+
+# Library-name rules first (the library says what a symbol is), then reference prefixes.
+_LIB_KIND: tuple[tuple[str, PartKind], ...] = (
+    ("Device:R*", PartKind.RESISTOR),
+    ("Device:C*", PartKind.CAPACITOR),
+    ("Device:LED*", PartKind.LED),
+    ("LED:*", PartKind.LED),
+    ("Device:D*", PartKind.DIODE),
+    ("Diode:*", PartKind.DIODE),
+    ("Device:Q*", PartKind.TRANSISTOR),
+    ("Transistor*", PartKind.TRANSISTOR),
+    ("Switch:*", PartKind.SWITCH),
+    ("Relay*", PartKind.RELAY),
+    ("Isolator:*", PartKind.OPTOCOUPLER),
+    ("Connector*", PartKind.CONNECTOR),
+    ("Amplifier_Operational:*", PartKind.OPAMP),
+    ("MCU_*", PartKind.MCU),
+    ("74xx:*", PartKind.LOGIC),
+    ("74xGxx:*", PartKind.LOGIC),
+    ("4xxx:*", PartKind.LOGIC),
+)
+_REF_KIND: tuple[tuple[str, PartKind], ...] = (
+    ("RN", PartKind.RESISTOR),
+    ("SW", PartKind.SWITCH),
+    ("LED", PartKind.LED),
+    ("OK", PartKind.OPTOCOUPLER),
+    ("ISO", PartKind.OPTOCOUPLER),
+    ("R", PartKind.RESISTOR),
+    ("C", PartKind.CAPACITOR),
+    ("S", PartKind.SWITCH),
+    ("K", PartKind.RELAY),
+    ("D", PartKind.DIODE),
+    ("Q", PartKind.TRANSISTOR),
+    ("T", PartKind.TRANSISTOR),
+    ("J", PartKind.CONNECTOR),
+    ("P", PartKind.CONNECTOR),
+)
+_MCU_NAME = re.compile(
+    r"(?i)ATMEGA|ATTINY|STM32|RP20[45]0|ESP32|ESP8266|PIC1[0268]|NRF5|SAMD|MSP430"
+)
+_OPTO_NAME = re.compile(r"(?i)^(PC8\d\d|TLP\d|6N13\d|H11|LTV|4N2\d|4N3\d|SFH6|EL8|CNY17)")
+
+
+def classify(part: Part) -> PartKind:
+    """The kind of a part from its library id, Value, reference prefix and pin types."""
+    for pattern, kind in _LIB_KIND:
+        if fnmatch.fnmatchcase(part.lib_id, pattern):
+            return kind
+    if family_from_name(part.value) or family_from_name(part.lib_id.split(":")[-1]):
+        return PartKind.LOGIC
+    if _MCU_NAME.search(part.value) or _MCU_NAME.search(part.lib_id):
+        return PartKind.MCU
+    if _OPTO_NAME.search(part.value):
+        return PartKind.OPTOCOUPLER
+    prefix = re.match(r"[A-Za-z]*", part.ref)
+    letters = prefix.group(0).upper() if prefix else ""
+    for start, kind in _REF_KIND:
+        if letters == start:
+            return kind
+    return PartKind.OTHER
+
+
+# ---------------------------------------------------------------- family patterns
+
+_74 = re.compile(
+    r"""
+    (?<![A-Z0-9])
+    (?: SN | MC | MM | DM | M | NC7S | TC | HD )?   # maker prefixes
+    (?: 54 | 74 )
+    (?P<fam> AHCT | AHC | ACT | AC | HCT | HC | LVC | LV | LS | ALS | AS | ABT | F | S )?
+    (?P<gates> [123] G )?
+    (?P<num> \d{1,5} )
+    """,
+    re.VERBOSE,
+)
+_4000 = re.compile(
+    r"""
+    (?<![A-Z0-9])
+    (?: CD | HEF | MC1 | TC | HCF )?     # MC14093 = 4093
+    (?P<num> 4[05]\d{2,3} )
+    (?P<suffix> UB | B )?
+    (?![0-9])
+    """,
+    re.VERBOSE,
+)
+_FAMILY_OF: Mapping[str, str] = MappingProxyType(
+    {"": "74", "LS": "LS", "HC": "HC", "HCT": "HCT", "AC": "AC", "ACT": "ACT", "AHC": "AHC",
+     "AHCT": "AHCT", "LVC": "LVC", "LV": "LV"}
+)  # fmt: skip
+# Device numbers with Schmitt-trigger inputs, common practice.
+_SCHMITT_74 = frozenset(
+    {"13", "14", "18", "19", "132", "7014", "1G14", "1G17", "1G132", "2G14", "2G17", "3G14", "3G17"}
+)
+_SCHMITT_4000 = frozenset({"4093", "40106", "4584", "4583"})
+
+
+@dataclass(frozen=True)
+class NameMatch:
+    family: str  # "" when the series is recognised but we hold no data (e.g. 74ALS)
+    schmitt: bool
+    series: str  # what was recognised, e.g. "74ALS"
+
+
+def family_from_name(text: str) -> NameMatch | None:
+    """Recognise a logic part number: ``74HC14`` → HC Schmitt; ``MC14093`` → 4000B Schmitt."""
+    upper = text.upper()
+    m = _74.search(upper)
+    if m is not None:
+        fam = m.group("fam") or ""
+        number = f"{m.group('gates') or ''}{m.group('num')}"
+        return NameMatch(_FAMILY_OF.get(fam, ""), number in _SCHMITT_74, f"74{fam}")
+    m = _4000.search(upper)
+    if m is not None:
+        family = "" if m.group("suffix") == "UB" else "4000B"
+        return NameMatch(family, m.group("num") in _SCHMITT_4000, f"4000{m.group('suffix') or ''}")
+    return None
+
+
+# ---------------------------------------------------------------- resistor sizes
+
+
+_CP = Status.COMMON_PRACTICE
+_FM = Status.FROM_MEMORY
+
+
+@dataclass(frozen=True)
+class SizeRating:
+    power: float  # W at 70 °C
+    working_voltage: float | None  # V
+    status: Status
+    note: str
+
+
+# Generic thick-film chip ratings by size (REFERENCES §6: common practice; the power-enhanced
+# series figure where two exist). Through-hole DIN 0207 is from memory.
+SIZES: Mapping[str, SizeRating] = MappingProxyType(
+    {
+        "0201": SizeRating(0.05, 25.0, _CP, "generic 0201 chip"),
+        "0402": SizeRating(0.0625, 50.0, _CP, "generic 0402 chip"),
+        "0603": SizeRating(0.1, 50.0, _CP, "0603 enhanced series; standard is 1/16 W"),
+        "0805": SizeRating(0.125, 150.0, _CP, "0805 enhanced series; standard is 1/10 W"),
+        "1206": SizeRating(0.25, 200.0, _CP, "1206 enhanced series; standard is 1/8 W"),
+        "1210": SizeRating(1 / 3, 200.0, _CP, "1210 enhanced series; standard is 1/4 W"),
+        "2010": SizeRating(0.75, 200.0, _CP, "2010 enhanced series; standard is 1/2 W"),
+        "2512": SizeRating(1.0, 200.0, _CP, "generic 2512 chip"),
+        "DIN0207": SizeRating(0.25, None, Status.FROM_MEMORY, "axial DIN 0207 film resistor"),
+    }
+)  # fmt: skip
+_FOOTPRINT_SIZE = re.compile(
+    r"(?:^|[:_])R_(?P<size>0201|0402|0603|0805|1206|1210|2010|2512)_|(?P<din>DIN0207)"
+)
+
+
+def size_from_footprint(footprint: str) -> str:
+    m = _FOOTPRINT_SIZE.search(footprint)
+    if m is None:
+        return ""
+    return m.group("size") or m.group("din") or ""
+
+
+# ---------------------------------------------------------------- part library
+
+
+@dataclass(frozen=True)
+class LibraryEntry:
+    name: str
+    match: tuple[str, ...]  # globs on Value or lib_id (case-insensitive)
+    kind: PartKind
+    family: Family | None  # input data, when the entry describes logic inputs
+    pins: tuple[str, ...]  # pin-name globs the input data applies to ("*" = all)
+    schmitt: bool
+    internal_pull: tuple[Sourced, Sourced] | None
+    ratings: Mapping[str, Sourced]
+
+
+@dataclass(frozen=True)
+class PartLibrary:
+    """User part descriptions, searched in file order."""
+
+    entries: tuple[LibraryEntry, ...] = ()
+
+    def find(self, part: Part) -> LibraryEntry | None:
+        for entry in self.entries:
+            for pattern in entry.match:
+                p = pattern.upper()
+                if fnmatch.fnmatchcase(part.value.upper(), p) or fnmatch.fnmatchcase(
+                    part.lib_id.upper(), p
+                ):
+                    return entry
+        return None
+
+
+_RATING_READERS: Mapping[str, Callable[..., Any]] = MappingProxyType(
+    {
+        "contact_max": parse_current,
+        "wetting": parse_current,
+        "bounce": parse_time,
+        "ctr_min": parse_percent,
+        "ageing": parse_percent,
+        "i_f": parse_current,
+        "dark_current": parse_current,
+        "vce_sat": parse_voltage,
+        "capacitance": parse_capacitance,
+    }
+)
+_ENTRY_KEYS = frozenset(
+    {"match", "kind", "pins", "schmitt_inputs", "internal_pull", *_RATING_READERS}
+)
+
+
+def load_part_library(path: Path) -> PartLibrary:
+    """Read a part library (TOML, ``[part.NAME]`` tables; syntax in the example file header).
+
+    Raises:
+        ValueParseError: malformed TOML, an unknown key or an unreadable value, naming the file.
+    """
+    try:
+        doc = tomllib.loads(Path(path).read_text(encoding="utf-8"))
+    except tomllib.TOMLDecodeError as exc:
+        m = re.search(r"\(at line (\d+), column (\d+)\)", str(exc))
+        loc = Location(str(path), int(m.group(1)), int(m.group(2))) if m else None
+        message = re.sub(r"\s*\(at line.*\)$", "", str(exc))
+        raise ValueParseError(
+            str(path), expected=f"a TOML part library ({message})", location=loc
+        ) from None
+    except OSError as exc:
+        raise ValueParseError(str(path), expected=f"a readable file ({exc.strerror})") from None
+    entries = []
+    for name, table in doc.get("part", {}).items():
+        part = f"{Path(path).name} [part.{name}]"
+        kind_word = str(table.get("kind", "microcontroller"))
+        kinds = {k.value: k for k in PartKind}
+        if kind_word not in kinds:
+            raise ValueParseError(
+                kind_word, expected=f"one of {', '.join(kinds)}", field="kind", part=part
+            )
+        family = None
+        if "supply" in table:
+            family = family_from_table(
+                name, table, str(path), origin=Origin.PART_LIBRARY, extra_keys=_ENTRY_KEYS
+            )
+        src = Provenance(Origin.PART_LIBRARY, f"part library entry {name} ({Path(path).name})",
+                         Status.USER, str(table.get("note", "")))  # fmt: skip
+        ratings = {
+            key: Sourced(reader(str(table[key]), field=key, part=part), src)
+            for key, reader in _RATING_READERS.items()
+            if key in table
+        }
+        pull = None
+        if "internal_pull" in table:
+            lo, hi = (
+                parse_resistance(str(t), field="internal_pull", part=part)
+                for t in table["internal_pull"]
+            )
+            pull = (Sourced(lo, src), Sourced(hi, src))
+        entries.append(
+            LibraryEntry(
+                name=name,
+                match=tuple(str(x) for x in table.get("match", [name])),
+                kind=kinds[kind_word],
+                family=family,
+                pins=tuple(str(x) for x in table.get("pins", ["*"])),
+                schmitt=bool(table.get("schmitt_inputs", False)),
+                internal_pull=pull,
+                ratings=MappingProxyType(ratings),
+            )
+        )
+    return PartLibrary(tuple(entries))
+
+
+# ---------------------------------------------------------------- resolved part
+
+
+@dataclass(frozen=True)
+class ResistorInfo:
+    ohms: Sourced | None
+    tolerance: Sourced
+    tcr: Sourced
+    power: Sourced | None
+    working_voltage: Sourced | None
+    size: str = ""
+    role: str = ""  # "", "pull" (force) or "skip"
+
+
+@dataclass(frozen=True)
+class Ratings:
+    """Contact, optocoupler and capacitor numbers (None when unknown)."""
+
+    values: Mapping[str, Sourced] = field(default_factory=lambda: MappingProxyType({}))
+
+    def get(self, key: str) -> Sourced | None:
+        return self.values.get(key)
+
+
+@dataclass(frozen=True)
+class PartInfo:
+    """What pullproof knows about one part."""
+
+    ref: str
+    kind: PartKind
+    family: str = ""  # family or part-library name; "" when unknown
+    inputs: InputModel | None = None  # the data for its logic input pins
+    input_pins: tuple[str, ...] = ("*",)  # pin-name globs the input model applies to
+    resistor: ResistorInfo | None = None
+    ratings: Ratings = Ratings()
+    missing: tuple[Missing, ...] = ()
+
+
+def _field_source(part: Part, name: str) -> Provenance:
+    return Provenance(Origin.FIELD, f"field '{name}' on {part.ref}", Status.USER)
+
+
+def _read_field(part: Part, name: str, reader: Callable[..., Any]) -> Sourced | None:
+    text = part.field(name)
+    if text is None:
+        return None
+    return Sourced(reader(text, field=name, part=part.ref), _field_source(part, name))
+
+
+def _default(value: Any, name: str, reason: str, status: Status = Status.DEFAULT) -> Sourced:
+    return Sourced(value, Provenance(Origin.DEFAULT, f"default {name}", status, reason))
+
+
+def _resistor(part: Part, rules: Rules) -> tuple[ResistorInfo, tuple[Missing, ...]]:
+    missing: list[Missing] = []
+    text: ResistorText | None = None
+    value_src = Provenance(Origin.VALUE, f"Value of {part.ref}", Status.USER)
+    try:
+        text = parse_resistor_text(part.value, field="Value", part=part.ref)
+    except ValueParseError as exc:
+        missing.append(Missing(f"resistance of {part.ref}", part.ref, f"{exc}; write e.g. 4k7"))
+    ohms = Sourced(text.ohms, value_src) if text else None
+    tol = _read_field(part, "Tolerance", parse_percent)
+    if tol is None and text and text.tolerance is not None:
+        tol = Sourced(text.tolerance, value_src)
+    tcr = _read_field(part, "TCR", parse_tcr)
+    if tcr is None and text and text.tcr is not None:
+        tcr = Sourced(text.tcr, value_src)
+    size = (text.size if text else "") or size_from_footprint(part.field("Footprint") or "")
+    rule_size = rules.get("resistor.size")
+    if not size and rule_size:
+        size = str(rule_size)
+    power = _read_field(part, "Power", parse_power)
+    if power is None and text and text.power is not None:
+        power = Sourced(text.power, value_src)
+    rating = SIZES.get(size)
+    if power is None and rating is not None:
+        power = _default(
+            Q_(rating.power, "W"), f"rating of size {size}", rating.note, rating.status
+        )
+    if power is None:
+        power = rules.get("resistor.power")
+    if power is None:
+        hint = "add field 'Power' (e.g. 0.1W), a chip footprint, or resistor.power in the rules"
+        missing.append(Missing(f"power rating of {part.ref}", part.ref, hint))
+    wv = _read_field(part, "pullproof.working_voltage", parse_voltage)
+    if wv is None and rating is not None and rating.working_voltage is not None:
+        wv = _default(Q_(rating.working_voltage, "V"), f"working voltage of size {size}",
+                      rating.note, rating.status)  # fmt: skip
+    role = (part.field("pullproof.role") or "").strip().lower()
+    if role not in ("", "pull", "skip"):
+        raise ValueParseError(role, expected="pull or skip", field="pullproof.role", part=part.ref)
+    info = ResistorInfo(
+        ohms=ohms,
+        tolerance=tol or rules.get("resistor.tolerance"),
+        tcr=tcr or rules.get("resistor.tcr"),
+        power=power,
+        working_voltage=wv,
+        size=size,
+        role=role,
+    )
+    return info, tuple(missing)
+
+
+_INPUT_FIELDS: Mapping[str, tuple[str, Callable[..., Any]]] = MappingProxyType(
+    {
+        "pullproof.vih": ("vih_min", parse_voltage),
+        "pullproof.vil": ("vil_max", parse_voltage),
+        "pullproof.i_high": ("i_high", parse_current),
+        "pullproof.i_low": ("i_low", parse_current),
+        "pullproof.v_in_max": ("v_in_max", parse_voltage),
+    }
+)
+_YES = frozenset({"yes", "true", "1", "y"})
+_NO = frozenset({"no", "false", "0", "n"})
+_HINT = "add field 'pullproof.family' (e.g. HC) or a part-library entry"
+
+
+def _overrides(part: Part) -> dict[str, Sourced]:
+    out: dict[str, Sourced] = {}
+    for name, (key, reader) in _INPUT_FIELDS.items():
+        value = _read_field(part, name, reader)
+        if value is not None:
+            if key.startswith("i_"):  # currents are stored as magnitudes (sign convention)
+                value = Sourced(abs(value.value), value.source)
+            out[key] = value
+    return out
+
+
+def _schmitt_field(part: Part) -> bool | None:
+    text = part.field("pullproof.schmitt")
+    if text is None:
+        return None
+    word = text.strip().lower()
+    if word in _YES | _NO:
+        return word in _YES
+    raise ValueParseError(text, expected="yes or no", field="pullproof.schmitt", part=part.ref)
+
+
+def _ratings(part: Part, entry: LibraryEntry | None, kind: PartKind) -> Ratings:
+    values: dict[str, Sourced] = dict(entry.ratings) if entry else {}
+    for key, reader in _RATING_READERS.items():
+        got = _read_field(part, f"pullproof.{key}", reader)
+        if got is not None:
+            values[key] = got
+    if kind is PartKind.CAPACITOR and "capacitance" not in values:
+        # an unreadable capacitor Value is reported by the check that needs it, as missing data
+        with contextlib.suppress(ValueParseError):
+            values["capacitance"] = Sourced(
+                parse_capacitance(part.value, field="Value", part=part.ref),
+                Provenance(Origin.VALUE, f"Value of {part.ref}", Status.USER),
+            )
+    for key, (value, reason, status) in _DEFAULTS.get(kind, {}).items():
+        values.setdefault(key, _default(value, f"{kind.value} {key}", reason, status))
+    return Ratings(MappingProxyType(values))
+
+
+# Documented defaults for parts that rarely carry ratings (Provenance origin DEFAULT).
+_SWITCH_DEFAULTS: Mapping[str, tuple[Any, str, Status]] = MappingProxyType(
+    {
+        "contact_max": (Q_(50e-3, "A"), "small signal switch rating (50 mA)", _FM),
+        "wetting": (Q_(0.1e-3, "A"), "gold-plated signal contacts need about 0.1–1 mA", _CP),
+    }
+)  # fmt: skip
+_DEFAULTS: Mapping[PartKind, Mapping[str, tuple[Any, str, Status]]] = MappingProxyType(
+    {
+        PartKind.SWITCH: _SWITCH_DEFAULTS,
+        PartKind.RELAY: MappingProxyType(
+            {"wetting": (Q_(10e-3, "A"), "silver power contacts need about 10 mA", _FM)}
+        ),
+        PartKind.OPTOCOUPLER: MappingProxyType(
+            {
+                "ageing": (Q_(0.5, ""), "end-of-life CTR = 0.5 × initial CTR", _CP),
+                "vce_sat": (Q_(0.4, "V"), "typical phototransistor saturation", _FM),
+                "dark_current": (Q_(100e-9, "A"), "typical phototransistor dark current", _FM),
+            }
+        ),
+    }
+)  # fmt: skip
+
+
+def resolve_part(part: Part, library: PartLibrary, rules: Rules) -> PartInfo:
+    """Everything pullproof can say about ``part``: kind, input model, resistor, ratings.
+
+    Raises:
+        ValueParseError: an explicit field (``pullproof.*``, Tolerance, Power, TCR) is unreadable.
+    """
+    entry = library.find(part)
+    kind = entry.kind if entry else classify(part)
+    missing: list[Missing] = []
+    if kind is PartKind.RESISTOR:
+        info, res_missing = _resistor(part, rules)
+        return PartInfo(part.ref, kind, resistor=info, missing=res_missing)
+    ratings = _ratings(part, entry, kind)
+    if kind in (PartKind.SWITCH, PartKind.RELAY, PartKind.OPTOCOUPLER, PartKind.CAPACITOR):
+        if kind is PartKind.OPTOCOUPLER and ratings.get("ctr_min") is None:
+            missing.append(
+                Missing(
+                    f"CTR min of {part.ref}", part.ref, "add field 'pullproof.ctr_min' (e.g. 50%)"
+                )
+            )
+        return PartInfo(part.ref, kind, ratings=ratings, missing=tuple(missing))
+    if kind not in (PartKind.LOGIC, PartKind.MCU, PartKind.OTHER):
+        return PartInfo(part.ref, kind, ratings=ratings)
+    model, name, pins = _input_model(part, entry, missing)
+    if model is not None:
+        overrides = _overrides(part)
+        if overrides:
+            model = model.with_overrides(overrides)
+    return PartInfo(part.ref, kind, name, model, pins, None, ratings, tuple(missing))
+
+
+def _input_model(
+    part: Part, entry: LibraryEntry | None, missing: list[Missing]
+) -> tuple[InputModel | None, str, tuple[str, ...]]:
+    families = load_families()
+    schmitt = _schmitt_field(part)
+    named = part.field("pullproof.family")
+    if named is not None:
+        key = {k.upper(): k for k in families}.get(named.strip().upper().removeprefix("74"))
+        key = key or {k.upper(): k for k in families}.get(named.strip().upper())
+        if key is None:
+            raise ValueParseError(named, expected=f"a family: {', '.join(families)}",
+                                  field="pullproof.family", part=part.ref)  # fmt: skip
+        return families[key].model(schmitt=bool(schmitt)), key, ("*",)
+    found = family_from_name(part.value) or family_from_name(part.lib_id.split(":")[-1])
+    if found is not None and found.family:
+        flag = found.schmitt if schmitt is None else schmitt
+        return families[found.family].model(schmitt=flag), found.family, ("*",)
+    if entry is not None and entry.family is not None:
+        model = InputModel(entry.family, schmitt=entry.schmitt if schmitt is None else schmitt,
+                           internal_pull=entry.internal_pull)  # fmt: skip
+        return model, entry.name, entry.pins
+    if _overrides(part):
+        return None, "", ("*",)  # individual fields only: the engine reads them from overrides
+    series = f" ({found.series}: no built-in data)" if found is not None else ""
+    missing.append(Missing(f"input data of {part.ref}{series}", part.ref, _HINT))
+    return None, "", ("*",)
