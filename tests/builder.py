@@ -19,6 +19,7 @@ method returns the builder, except ``pin_point``/``text``/``sheet``.
 
 from __future__ import annotations
 
+import itertools
 import uuid as _uuid
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -49,14 +50,18 @@ class Pin:
 RESISTOR_PINS = (Pin("1", (0, 3.81)), Pin("2", (0, -3.81)))
 SWITCH_PINS = (Pin("1", (-5.08, 0)), Pin("2", (5.08, 0)))
 # A 74HC14-like hex Schmitt inverter: gates are units 1-6, supply pins in unit 7.
-HEX_INVERTER_PINS = tuple(
-    pin
-    for gate, (a, y) in enumerate(((1, 2), (3, 4), (5, 6), (9, 8), (11, 10), (13, 12)), start=1)
-    for pin in (
-        Pin(str(a), (-7.62, 0), "input", "", gate),
-        Pin(str(y), (7.62, 0), "output", "", gate),
-    )
-) + (Pin("14", (0, 12.7), "power_in", "VCC", 7), Pin("7", (0, -12.7), "power_in", "GND", 7))
+HEX_INVERTER_PINS = (
+    *tuple(
+        pin
+        for gate, (a, y) in enumerate(((1, 2), (3, 4), (5, 6), (9, 8), (11, 10), (13, 12)), start=1)
+        for pin in (
+            Pin(str(a), (-7.62, 0), "input", "", gate),
+            Pin(str(y), (7.62, 0), "output", "", gate),
+        )
+    ),
+    Pin("14", (0, 12.7), "power_in", "VCC", 7),
+    Pin("7", (0, -12.7), "power_in", "GND", 7),
+)
 
 
 def _mm(value: float) -> str:
@@ -118,8 +123,19 @@ class SchematicBuilder:
         """
         self._libs.setdefault(lib_id, (tuple(pins), power))
         self._placed.append(
-            _Placed(ref, lib_id, at, rot, mirror, unit, value or lib_id.split(":")[-1],
-                    dict(fields or {}), str(_uuid.uuid4()), dict(instances or {}), dnp)
+            _Placed(
+                ref,
+                lib_id,
+                at,
+                rot,
+                mirror,
+                unit,
+                value or lib_id.split(":")[-1],
+                dict(fields or {}),
+                str(_uuid.uuid4()),
+                dict(instances or {}),
+                dnp,
+            )
         )
         return self
 
@@ -134,15 +150,22 @@ class SchematicBuilder:
         self._power_count += 1
         lib = lib_id or f"power:{name}"
         pin = Pin("1", (0, 0), "power_in", "" if self.version >= V10 else name, hidden=True)
-        return self.part(f"#PWR{self._power_count:03d}", lib, pins=(pin,), at=at, value=name,
-                         power="global")
+        return self.part(
+            f"#PWR{self._power_count:03d}", lib, pins=(pin,), at=at, value=name, power="global"
+        )
 
     def flag(self, *, at: tuple[float, float]) -> SchematicBuilder:
         """A power flag (power-out pin): marks a net as driven, joins nothing."""
         self._power_count += 1
         pin = Pin("1", (0, 0), "power_out", "pwr")
-        return self.part(f"#FLG{self._power_count:03d}", "power:PWR_FLAG", pins=(pin,), at=at,
-                         value="PWR_FLAG", power="global")
+        return self.part(
+            f"#FLG{self._power_count:03d}",
+            "power:PWR_FLAG",
+            pins=(pin,),
+            at=at,
+            value="PWR_FLAG",
+            power="global",
+        )
 
     def pin_point(self, ref: str, number: str, unit: int | None = None) -> tuple[float, float]:
         """Where pin ``number`` of the placed ``ref`` lands on the sheet (mm).
@@ -166,7 +189,7 @@ class SchematicBuilder:
     # -- drawing ----------------------------------------------------------------------------
     def wire(self, *points: tuple[float, float]) -> SchematicBuilder:
         """A wire through ``points`` (one segment per consecutive pair)."""
-        for a, b in zip(points, points[1:], strict=False):
+        for a, b in itertools.pairwise(points):
             self._items.append(
                 f"(wire (pts (xy {_mm(a[0])} {_mm(a[1])}) (xy {_mm(b[0])} {_mm(b[1])}))"
                 f" (stroke (width 0) (type default)) (uuid {_q(str(_uuid.uuid4()))}))"
@@ -175,7 +198,7 @@ class SchematicBuilder:
 
     def bus(self, *points: tuple[float, float]) -> SchematicBuilder:
         """A bus line through ``points``; it carries nothing but joins vector names."""
-        for a, b in zip(points, points[1:], strict=False):
+        for a, b in itertools.pairwise(points):
             self._items.append(
                 f"(bus (pts (xy {_mm(a[0])} {_mm(a[1])}) (xy {_mm(b[0])} {_mm(b[1])})))"
             )
@@ -206,8 +229,9 @@ class SchematicBuilder:
     ) -> str:
         """A sheet block using ``file``; ``pins`` maps pin names to points. Returns its uuid."""
         sheet_uuid = uuid or str(_uuid.uuid4())
-        name_key, file_key = ("Sheet name", "Sheet file") if self.version <= V6 else (
-            "Sheetname", "Sheetfile")
+        name_key, file_key = (
+            ("Sheet name", "Sheet file") if self.version <= V6 else ("Sheetname", "Sheetfile")
+        )
         body = "".join(
             f" (pin {_q(n)} input (at {_mm(p[0])} {_mm(p[1])} 0))" for n, p in (pins or {}).items()
         )
@@ -233,7 +257,8 @@ class SchematicBuilder:
                 f"{hide} (name {_q(pin.name or '~')}) (number {_q(pin.number)}))"
             )
         subs = " ".join(
-            f"(symbol {_q(f'{name}_{u}_1')} {' '.join(texts)})" for u, texts in sorted(units.items())
+            f"(symbol {_q(f'{name}_{u}_1')} {' '.join(texts)})"
+            for u, texts in sorted(units.items())
         )
         return f"(symbol {_q(lib_id)}{flag} (in_bom yes) (on_board yes) {subs})"
 
@@ -245,9 +270,14 @@ class SchematicBuilder:
         inst = ""
         if self.version > V6:
             paths = p.instances or {f"/{self.uuid}": p.ref}
-            inst = " (instances (project \"fixture\"" + "".join(
-                f" (path {_q(path)} (reference {_q(r)}) (unit {p.unit}))" for path, r in paths.items()
-            ) + "))"
+            inst = (
+                ' (instances (project "fixture"'
+                + "".join(
+                    f" (path {_q(path)} (reference {_q(r)}) (unit {p.unit}))"
+                    for path, r in paths.items()
+                )
+                + "))"
+            )
         else:
             self._v6_table.append((f"/{p.uuid}", p.ref, p.unit))
         dnp = " (dnp yes)" if p.dnp else (" (dnp no)" if self.version > V6 else "")
@@ -275,7 +305,8 @@ class SchematicBuilder:
         ]
         if self._v6_table:
             rows = "".join(
-                f" (path {_q(path)} (reference {_q(r)}) (unit {u}))" for path, r, u in self._v6_table
+                f" (path {_q(path)} (reference {_q(r)}) (unit {u}))"
+                for path, r, u in self._v6_table
             )
             lines.append(f"{ind}(symbol_instances{rows})")
         lines.append(")")

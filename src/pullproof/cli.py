@@ -34,6 +34,18 @@ def _cmd_nets(args: argparse.Namespace) -> int:
     return 0
 
 
+def _cmd_families(args: argparse.Namespace) -> int:
+    import json
+
+    from .families.report import families_json, families_table
+
+    if args.json:
+        print(json.dumps(families_json(), indent=1, ensure_ascii=False))
+    else:
+        print(families_table(), end="")
+    return 0
+
+
 def _build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="pullproof",
@@ -46,6 +58,10 @@ def _build_parser() -> argparse.ArgumentParser:
     p.add_argument("root", help="root schematic file (.kicad_sch)")
     p.add_argument("--json", action="store_true", help="print the pullproof.nets/1 JSON document")
     p.set_defaults(handler=_cmd_nets)
+
+    p = sub.add_parser("families", help="list the built-in logic families with their sources")
+    p.add_argument("--json", action="store_true", help="print the pullproof.families/1 JSON")
+    p.set_defaults(handler=_cmd_families)
 
     return parser
 
