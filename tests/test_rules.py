@@ -1,0 +1,105 @@
+"""The rules file: defaults with reasons, rails from names, positioned errors."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+
+from pullproof.errors import RulesError
+from pullproof.provenance import Origin
+from pullproof.rules import KEYS, load_rules
+
+
+def _rules(tmp_path: Path, text: str) -> object:
+    (tmp_path / "pullproof.toml").write_text(text, encoding="utf-8")
+    return load_rules(tmp_path / "board.kicad_sch")
+
+
+def test_defaults_without_a_file(tmp_path: Path) -> None:
+    rules = load_rules(tmp_path / "board.kicad_sch")
+    assert rules.file == "" and rules.series == "E24" and rules.policy == "centre"
+    tol = rules.get("resistor.tolerance")
+    assert tol.magnitude("") == 0.05
+    assert tol.source.origin is Origin.DEFAULT and tol.source.reason
+
+
+def test_every_key_has_a_reason() -> None:
+    assert all(key.reason for key in KEYS.values())
+
+
+@pytest.mark.parametrize(
+    ("name", "volts"),
+    # rail names as designers write them: common practice
+    [("+5V", 5.0), ("+3V3", 3.3), ("3.3V", 3.3), ("VCC_1V8", 1.8), ("-12V", -12.0),
+     ("+3.3VP", 3.3), ("VBUS", 5.0), ("/+12V", 12.0), ("V3P3", 3.3), ("+24V", 24.0)],
+)  # fmt: skip
+def test_rail_from_name(tmp_path: Path, name: str, volts: float) -> None:
+    rail = load_rules(tmp_path / "x.kicad_sch").rail(name)
+    assert rail is not None and rail.nominal is not None and not rail.ground
+    assert rail.nominal.magnitude("V") == pytest.approx(volts)
+    assert rail.v_min is not None and rail.v_max is not None
+    # default rail tolerance 5 %
+    assert rail.v_max.magnitude("V") - rail.v_min.magnitude("V") == pytest.approx(0.1 * abs(volts))
+
+
+@pytest.mark.parametrize("name", ["GND", "GNDA", "GNDD", "VSS", "0V", "Earth", "/GND", "AGND"])
+def test_grounds(tmp_path: Path, name: str) -> None:
+    rail = load_rules(tmp_path / "x.kicad_sch").rail(name)
+    assert rail is not None and rail.ground
+
+
+def test_unnamed_supply_is_a_rail_without_voltage(tmp_path: Path) -> None:
+    rail = load_rules(tmp_path / "x.kicad_sch").rail("VDD")
+    assert rail is not None and rail.nominal is None
+    assert load_rules(tmp_path / "x.kicad_sch").rail("/KEY_UP") is None
+
+
+def test_rails_table_and_net_overrides(tmp_path: Path) -> None:
+    rules = _rules(
+        tmp_path,
+        'series = "E96"\n[rails]\nVDD = { nominal = "3V3", tolerance = "2%" }\n'
+        '[[net]]\nmatch = "*SDA*"\ni2c = "fast"\nbus_capacitance = "100pF"\n',
+    )
+    assert rules.series == "E96"
+    vdd = rules.rail("VDD")
+    assert vdd is not None and vdd.v_min is not None
+    assert vdd.v_min.magnitude("V") == pytest.approx(3.3 * 0.98)
+    net = rules.for_net("/I2C_SDA")
+    assert net.i2c_mode == "fast"
+    assert net.bus_capacitance is not None
+    assert net.bus_capacitance.magnitude("F") == pytest.approx(100e-12)
+    assert net.bus_capacitance.source.where == "rules key net.bus_capacitance (pullproof.toml:7)"
+    assert rules.for_net("/KEY").i2c_mode == ""
+
+
+def test_mains_patterns(tmp_path: Path) -> None:
+    rules = load_rules(tmp_path / "x.kicad_sch")
+    assert rules.is_mains("/MAINS_L") and not rules.is_mains("/KEY_UP")
+
+
+@pytest.mark.parametrize(
+    ("text", "message"),
+    [
+        ('series = "E24"\n[resistor]\ntolernce = "1%"\n',
+         "pullproof.toml:3:1: unknown rules key 'resistor.tolernce'; did you mean 'resistor.tolerance'?"),
+        ('seires = "E24"\n', "pullproof.toml:1:1: unknown rules key 'seires'; did you mean 'series'?"),
+        ("series = E12\n", "pullproof.toml:1:10: malformed TOML: Invalid value"),
+        ('margin = "5 %%"\n',
+         "pullproof.toml:1:1: rules key 'margin': cannot read '5 %%'; expected a percentage such as 5% or ±1%"),
+        ('series = "E7"\n',
+         "pullproof.toml:1:1: rules key 'series': cannot read 'E7'; expected one of e3, e6, e12, e24, e48, e96, e192"),
+        ('\n[[net]]\nmatch = "*X*"\nspeed = "fast"\n',
+         "pullproof.toml:4:1: unknown rules key 'net.speed'"),
+        ("derating = true\n", "pullproof.toml:1:1: rules key 'derating': write the value as text, e.g. \"5%\""),
+    ],
+)  # fmt: skip
+def test_errors(tmp_path: Path, text: str, message: str) -> None:
+    with pytest.raises(RulesError) as info:
+        _rules(tmp_path, text)
+    assert str(info.value) == f"{tmp_path}/{message}"
+
+
+def test_explicit_missing_file(tmp_path: Path) -> None:
+    with pytest.raises(RulesError, match="cannot read rules file"):
+        load_rules(tmp_path / "x.kicad_sch", tmp_path / "nope.toml")
