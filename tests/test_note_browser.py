@@ -1,0 +1,95 @@
+"""The design note in a real browser: headless Chromium prints it, screenshots it, renders its DOM.
+
+Skipped when no Chromium is installed (CI installs the Debian package `chromium`).
+"""
+
+from __future__ import annotations
+
+import re
+import shutil
+import subprocess
+from pathlib import Path
+
+import pytest
+
+from pullproof.report.note import write_note
+from pullproof.results import ReviewResult
+from resultfactory import sample_result
+
+CHROMIUM = next((p for p in map(shutil.which, ("chromium", "chromium-browser")) if p), None)
+pytestmark = pytest.mark.skipif(
+    CHROMIUM is None, reason="headless Chromium is not installed (Debian package 'chromium')"
+)
+TIMEOUT = 120  # seconds; a first start of Chromium in a fresh profile can be slow
+
+
+def chromium(tmp_path: Path, *args: str) -> subprocess.CompletedProcess[bytes]:
+    assert CHROMIUM is not None
+    profile = tmp_path / "profile"
+    cmd = [
+        CHROMIUM,
+        "--headless",
+        "--no-sandbox",
+        "--disable-gpu",
+        "--disable-quic",
+        "--no-first-run",
+        "--disable-background-networking",
+        "--disable-component-update",
+        "--disable-sync",
+        f"--user-data-dir={profile}",
+        *args,
+    ]
+    done = subprocess.run(cmd, capture_output=True, timeout=TIMEOUT, check=False)
+    assert done.returncode == 0, done.stderr.decode(errors="replace")[-2000:]
+    return done
+
+
+def note_file(tmp_path: Path, result: ReviewResult, name: str) -> Path:
+    path = tmp_path / f"{name}.html"
+    write_note(result, path, title="Greenhouse controller", author="Tester", date="2025-03-01")
+    return path
+
+
+def pdf_pages(tmp_path: Path, html: Path) -> int:
+    pdf = html.with_suffix(".pdf")
+    chromium(tmp_path, f"--print-to-pdf={pdf}", "--no-pdf-header-footer", html.as_uri())
+    data = pdf.read_bytes()
+    assert data.startswith(b"%PDF")
+    if shutil.which("pdfinfo"):
+        info = subprocess.run(
+            ["pdfinfo", str(pdf)], capture_output=True, text=True, timeout=30, check=True
+        ).stdout
+        m = re.search(r"^Pages:\s+(\d+)", info, re.M)
+        assert m, info
+        return int(m.group(1))
+    return len(re.findall(rb"/Type\s*/Page(?!s)", data))
+
+
+def test_pdf_grows_with_the_number_of_networks(tmp_path: Path) -> None:
+    one = pdf_pages(tmp_path, note_file(tmp_path, sample_result(1), "one"))
+    four = pdf_pages(tmp_path, note_file(tmp_path, sample_result(4), "four"))
+    # Each network section starts on a new page (break-before: page).
+    assert one >= 2
+    assert four >= one + 3
+
+
+def test_rendered_dom_has_every_chart(tmp_path: Path) -> None:
+    result = sample_result()
+    html = note_file(tmp_path, result, "dom")
+    dom = chromium(tmp_path, "--dump-dom", html.as_uri()).stdout.decode()
+    assert dom.count('<svg xmlns="http://www.w3.org/2000/svg" class="chart" role="img"') == len(
+        result.networks
+    )
+    assert dom.count('class="network"') == len(result.networks)
+    assert "<script" not in dom
+
+
+def test_screenshot_is_written(tmp_path: Path) -> None:
+    html = note_file(tmp_path, sample_result(), "shot")
+    png = tmp_path / "shot.png"
+    chromium(tmp_path, f"--screenshot={png}", "--window-size=1200,1600", html.as_uri())
+    data = png.read_bytes()
+    assert data.startswith(b"\x89PNG\r\n\x1a\n")
+    # PNG IHDR (ISO/IEC 15948): width and height are the big-endian words at bytes 16-24.
+    assert int.from_bytes(data[16:20], "big") == 1200
+    assert int.from_bytes(data[20:24], "big") == 1600
