@@ -169,7 +169,7 @@ def check_note_html(html: str, result: ReviewResult) -> list[str]:
         if len(sec.refs) != n_terms:
             problems.append(f"{net.net}: {len(sec.refs)} term references for {n_terms} terms")
         for number, href in sec.refs:
-            if href != f"#{sec.anchor}-p{number}" or href[1:] not in sec.prov_ids:
+            if href != f"#{sec.anchor}_p{number}" or href[1:] not in sec.prov_ids:
                 problems.append(f"{net.net}: term reference {href!r} has no provenance entry")
         if sec.svgs != 1 or sec.svg_titles < 1 or sec.svg_descs < 1:
             problems.append(f"{net.net}: chart missing or without <title>/<desc>")

@@ -116,6 +116,17 @@ def test_anchors_are_slugged_and_unique(nets: list[str], anchors: list[str]) -> 
     assert sorted(v.anchor for v in ctx["networks"]) == sorted(anchors)
 
 
+def test_ids_never_collide_between_sections() -> None:
+    # Net names that slug into another section's entry ids ("net-a" + "-p1", "-h").
+    base = sample_result(1)
+    nr = base.networks[0]
+    nets = ("/A", "/A-p1", "/A-h", "/A_p1")
+    result = replace(
+        base, networks=tuple(replace(nr, network=replace(nr.network, net=n)) for n in nets)
+    )
+    assert check_note_html(render(result), result) == []
+
+
 def test_every_term_refers_to_its_provenance_entry() -> None:
     result = sample_result()
     ctx = note_context(result, title="t", date="d")
@@ -211,6 +222,13 @@ def test_template_typo_raises(tmp_path: Path) -> None:
     ctx = note_context(sample_result(1), title="t", date="d")
     with pytest.raises(jinja2.UndefinedError, match="refs_txt"):
         env.get_template(note_mod.TEMPLATE).render(**ctx)
+
+
+def test_templates_ship_where_the_wheel_puts_them() -> None:
+    # pyproject force-includes templates/ as pullproof/templates; a source checkout falls back.
+    assert note_mod._template_dir() == REPO / "templates"
+    assert (REPO / "templates" / note_mod.TEMPLATE).is_file()
+    assert '"templates" = "pullproof/templates"' in (REPO / "pyproject.toml").read_text()
 
 
 def test_environment_escapes_and_is_strict() -> None:
