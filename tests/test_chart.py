@@ -11,6 +11,7 @@ import pytest
 
 from pullproof.report.chart import chart_text, window_chart
 from pullproof.results import NetworkResult
+from pullproof.units import Q_
 from resultfactory import (
     HOSTILE,
     hostile_result,
@@ -155,3 +156,19 @@ def test_chart_text_reads_the_whole_story() -> None:
         "Soft limit Preferred range (high end): at most 100 kΩ. 45 E24 values fit; "
         "recommended 5.1 kΩ."
     )
+
+
+def test_zero_ohm_link_and_infinite_limit_do_not_break_the_axis() -> None:
+    result = net_pass()
+    res = replace(
+        result.network.resistor, ohms=replace(result.network.resistor.ohms, value=Q_(0, "ohm"))
+    )
+    odd = replace(
+        result,
+        network=replace(result.network, resistor=res),
+        band=(0.0, 0.0),
+        window=(551.25, math.inf),
+    )
+    root = tree(odd)
+    bar = next(r for r in root.iter(f"{SVG}rect") if r.get("class") == "band")
+    assert bar.get("x") == "20.0"

@@ -35,6 +35,7 @@ _BAR_FILL = "#24486e"
 
 def _scale(values: list[float]) -> tuple[int, int]:
     """Decade range covering ``values`` with some room, at least three decades wide."""
+    values = [v for v in values if 0 < v < math.inf]
     if not values:
         return 2, 6  # 100 Ω … 1 MΩ: where logic pulls live (common practice)
     lo = math.floor(math.log10(min(values) / 1.5))
@@ -49,6 +50,11 @@ class _Axis:
         self.d0, self.d1 = d0, d1
 
     def x(self, ohms: float) -> float:
+        # A zero-ohm link or a band pushed below zero sits at the left edge, never a math error.
+        if not ohms > 0:
+            return _X0
+        if math.isinf(ohms):
+            return _X1
         t = (math.log10(ohms) - self.d0) / (self.d1 - self.d0)
         return _X0 + max(0.0, min(1.0, t)) * (_X1 - _X0)
 
