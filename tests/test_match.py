@@ -109,9 +109,13 @@ def test_unreadable_resistor_value_is_missing_data() -> None:
 @pytest.mark.parametrize(
     ("fields", "message"),
     [
-        ({"Tolerance": "5 %%"}, "field 'Tolerance' of R1: cannot read '5 %%'; expected a percentage such as 5% or ±1%"),
-        ({"Power": "lots"}, "field 'Power' of R1: cannot read 'lots'; expected a power such as 0.1W, 1/4W or 100mW"),
-        ({"pullproof.role": "maybe"}, "field 'pullproof.role' of R1: cannot read 'maybe'; expected pull or skip"),
+        ({"Tolerance": "5 %%"},
+         "field 'Tolerance' of R1: cannot read '5 %%'; "
+         "expected a percentage such as 5% or ±1%"),
+        ({"Power": "lots"},
+         "field 'Power' of R1: cannot read 'lots'; expected a power such as 0.1W, 1/4W or 100mW"),
+        ({"pullproof.role": "maybe"},
+         "field 'pullproof.role' of R1: cannot read 'maybe'; expected pull or skip"),
     ],
 )  # fmt: skip
 def test_bad_explicit_field_raises(fields: dict[str, str], message: str) -> None:
@@ -145,7 +149,7 @@ def test_unknown_part_is_reported_not_raised() -> None:
 
 
 def test_unknown_family_field_raises() -> None:
-    with pytest.raises(ValueParseError, match="field 'pullproof.family' of U1: cannot read 'ZZ'"):
+    with pytest.raises(ValueParseError, match=r"field 'pullproof\.family' of U1: cannot read 'ZZ'"):
         resolve_part(_part("U1", "x", "", **{"pullproof.family": "ZZ"}), PartLibrary(), RULES)
 
 
@@ -183,7 +187,7 @@ def test_bad_part_library(tmp_path: Path) -> None:
     path = tmp_path / "lib.toml"
     path.write_text('[part.X]\nkind = "gadget"\n', encoding="utf-8")
     with pytest.raises(
-        ValueParseError, match="field 'kind' of lib.toml \\[part.X\\]: cannot read 'gadget'"
+        ValueParseError, match=r"field 'kind' of lib\.toml \[part\.X\]: cannot read 'gadget'"
     ):
         load_part_library(path)
 

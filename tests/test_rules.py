@@ -82,16 +82,21 @@ def test_mains_patterns(tmp_path: Path) -> None:
     ("text", "message"),
     [
         ('series = "E24"\n[resistor]\ntolernce = "1%"\n',
-         "pullproof.toml:3:1: unknown rules key 'resistor.tolernce'; did you mean 'resistor.tolerance'?"),
-        ('seires = "E24"\n', "pullproof.toml:1:1: unknown rules key 'seires'; did you mean 'series'?"),
+         "pullproof.toml:3:1: unknown rules key 'resistor.tolernce'; "
+         "did you mean 'resistor.tolerance'?"),
+        ('seires = "E24"\n',
+         "pullproof.toml:1:1: unknown rules key 'seires'; did you mean 'series'?"),
         ("series = E12\n", "pullproof.toml:1:10: malformed TOML: Invalid value"),
         ('margin = "5 %%"\n',
-         "pullproof.toml:1:1: rules key 'margin': cannot read '5 %%'; expected a percentage such as 5% or ±1%"),
+         "pullproof.toml:1:1: rules key 'margin': cannot read '5 %%'; "
+         "expected a percentage such as 5% or ±1%"),
         ('series = "E7"\n',
-         "pullproof.toml:1:1: rules key 'series': cannot read 'E7'; expected one of e3, e6, e12, e24, e48, e96, e192"),
+         "pullproof.toml:1:1: rules key 'series': cannot read 'E7'; "
+         "expected one of e3, e6, e12, e24, e48, e96, e192"),
         ('\n[[net]]\nmatch = "*X*"\nspeed = "fast"\n',
          "pullproof.toml:4:1: unknown rules key 'net.speed'"),
-        ("derating = true\n", "pullproof.toml:1:1: rules key 'derating': write the value as text, e.g. \"5%\""),
+        ("derating = true\n",
+         "pullproof.toml:1:1: rules key 'derating': write the value as text, e.g. \"5%\""),
     ],
 )  # fmt: skip
 def test_errors(tmp_path: Path, text: str, message: str) -> None:

@@ -158,6 +158,7 @@ def test_temperature() -> None:
 
 
 R_EXP = "expected a resistance such as 4k7, 47k, 4.7 kΩ, 470R, R47 or 47000"
+R_THEN = ", then after the resistance: a tolerance (1%), power (0.1W), size (0603) or TCR"
 I_EXP = "expected a current with its unit, such as 1µA, 0.4mA or -0.4 mA"
 V_EXP = "expected a voltage with its unit, such as 3V3, +5V, 1.8 V or 230VAC"
 C_EXP = "expected a capacitance such as 100n, 4n7 or 100 nF"
@@ -197,7 +198,7 @@ P_EXP = "expected a power such as 0.1W, 1/4W or 100mW"
         (parse_resistor_text, "Value", "R3", "10k 100%", PCT_EXP + " below 100 %"),
         (parse_resistor_text, "Value", "R3", "4.7.1k", R_EXP),
         (parse_resistor_text, "Value", "R3", "k47", R_EXP),
-        (parse_resistor_text, "Value", "R3", "10 k 5", R_EXP),
+        (parse_resistor_text, "Value", "R3", "10 k 5", R_EXP + R_THEN),
         (parse_resistor_text, "Value", "R3", "1/0W", P_EXP + " above zero"),
         (parse_resistor_text, "Value", "R3", "47kΩΩ", R_EXP),
         (parse_resistor_text, "Value", "R3", "inf", R_EXP),

@@ -203,7 +203,7 @@ def _resistance_head(
             tol = TOLERANCE_LETTERS[m.group("tol")] if m.group("tol") else None
         return _finite(value, text, _EXPECT_R, field, part), tol, m.end()
     m = _DEC_R.match(text)
-    if m is None or not _ends_token(text, m.end()):
+    if m is None or (not _ends_token(text, m.end()) and not text[m.end() - 1].isspace()):
         raise _fail(text, _EXPECT_R, field, part)
     prefix = m.group("prefix") or ""
     if prefix == "m" and not m.group("unit"):
@@ -211,7 +211,10 @@ def _resistance_head(
             text, f"{_EXPECT_R} (lowercase m is milli: write M for megohm or mΩ)", field, part
         )
     value = _decimal(m.group("num"), _PREFIX[prefix])
-    return _finite(value, text, _EXPECT_R, field, part), None, m.end()
+    end = m.end()
+    while end > 0 and text[end - 1] in " \t":  # "680 1206": the space belongs to the separator
+        end -= 1
+    return _finite(value, text, _EXPECT_R, field, part), None, end
 
 
 def _ends_token(text: str, end: int) -> bool:

@@ -528,11 +528,12 @@ def _ratings(part: Part, entry: LibraryEntry | None, kind: PartKind) -> Ratings:
         got = _read_field(part, f"pullproof.{key}", reader)
         if got is not None:
             values[key] = got
-    if kind is PartKind.CAPACITOR and "capacitance" not in values:
+    if kind is PartKind.CAPACITOR and "capacitance" not in values and part.value.strip():
         # an unreadable capacitor Value is reported by the check that needs it, as missing data
         with contextlib.suppress(ValueParseError):
             values["capacitance"] = Sourced(
-                parse_capacitance(part.value, field="Value", part=part.ref),
+                # "100nF 0603": the capacitance is the first word
+                parse_capacitance(part.value.split()[0], field="Value", part=part.ref),
                 Provenance(Origin.VALUE, f"Value of {part.ref}", Status.USER),
             )
     for key, (value, reason, status) in _DEFAULTS.get(kind, {}).items():
