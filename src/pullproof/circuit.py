@@ -142,7 +142,7 @@ class Circuit:
         if cache is None:
             cache = {p.ref: p for p in self.parts}
             object.__setattr__(self, "_pbr", cache)
-        return cache  # type: ignore[no-any-return]
+        return cache
 
     @property
     def _net_by_pin(self) -> dict[tuple[str, str], Net]:
@@ -150,4 +150,4 @@ class Circuit:
         if cache is None:
             cache = {(m.ref, m.pin): n for n in self.nets for m in n.members}
             object.__setattr__(self, "_nbp", cache)
-        return cache  # type: ignore[no-any-return]
+        return cache

@@ -11,11 +11,15 @@ from __future__ import annotations
 import argparse
 import sys
 from collections.abc import Callable, Sequence
+from typing import TYPE_CHECKING
 
 from . import __version__
-from .errors import EXIT_INPUT, EXIT_INTERNAL, PullproofError
+from .errors import EXIT_FINDINGS, EXIT_INPUT, EXIT_INTERNAL, PullproofError
 
 __all__ = ["main"]
+
+if TYPE_CHECKING:
+    from .results import ReviewResult
 
 Handler = Callable[[argparse.Namespace], int]
 
@@ -46,10 +50,69 @@ def _cmd_families(args: argparse.Namespace) -> int:
     return 0
 
 
+_FAIL_ON = {"marginal": 1, "incomplete": 2, "fail": 3}
+
+
+def _review_from(args: argparse.Namespace) -> ReviewResult:
+    from .review import Selection, parse_ref_list, parse_where, review
+
+    select = Selection(
+        refs=parse_ref_list(args.ref) if args.ref else None,
+        where=parse_where(args.where or ()),
+    )
+    return review(args.root, rules=args.rules, parts=args.parts or (), select=select)
+
+
+def _cmd_review(args: argparse.Namespace) -> int:
+    import json
+
+    from .report.console import review_table
+    from .report.review_json import review_json
+
+    result = _review_from(args)
+    if args.json:
+        print(json.dumps(review_json(result), indent=1, ensure_ascii=False))
+    else:
+        print(review_table(result), end="")
+    return EXIT_FINDINGS if result.worst.rank >= _FAIL_ON[args.fail_on] else 0
+
+
+def _cmd_note(args: argparse.Namespace) -> int:
+    from pathlib import Path
+
+    from .report.note import write_note
+
+    result = _review_from(args)
+    title = args.title or f"Pull resistor design note: {Path(args.root).stem}"
+    write_note(result, Path(args.output), title=title, author=args.author or "")
+    print(f"wrote {args.output} ({len(result.networks)} networks, worst: {result.worst.value})")
+    return 0
+
+
+def _selection_options(p: argparse.ArgumentParser) -> None:
+    p.add_argument("root", help="root schematic file (.kicad_sch)")
+    p.add_argument(
+        "--rules", metavar="FILE", help="rules file (default: pullproof.toml beside ROOT)"
+    )
+    p.add_argument(
+        "--parts",
+        metavar="FILE",
+        action="append",
+        help="part-library file, may repeat (default: pullproof-parts.toml beside ROOT)",
+    )
+    p.add_argument("--ref", metavar="REFS", help="judge only these resistors, e.g. R3,R7-R12")
+    p.add_argument(
+        "--where",
+        metavar="FIELD=VALUE",
+        action="append",
+        help="judge only resistors whose FIELD matches VALUE (glob); may repeat",
+    )
+
+
 def _build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="pullproof",
-        description="Check pull-up and pull-down resistors in a schematic against worst-case limits.",
+        description="Check pull-up and pull-down resistors against worst-case limits.",
     )
     parser.add_argument("--version", action="version", version=f"pullproof {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", required=True)
@@ -62,6 +125,24 @@ def _build_parser() -> argparse.ArgumentParser:
     p = sub.add_parser("families", help="list the built-in logic families with their sources")
     p.add_argument("--json", action="store_true", help="print the pullproof.families/1 JSON")
     p.set_defaults(handler=_cmd_families)
+
+    p = sub.add_parser("review", help="judge every pull-up and pull-down resistor")
+    _selection_options(p)
+    p.add_argument("--json", action="store_true", help="print the pullproof.review/1 JSON document")
+    p.add_argument(
+        "--fail-on",
+        choices=sorted(_FAIL_ON, key=_FAIL_ON.__getitem__),
+        default="fail",
+        help="exit 1 when any verdict or finding is at least this bad (default: fail)",
+    )
+    p.set_defaults(handler=_cmd_review)
+
+    p = sub.add_parser("note", help="write the HTML design note")
+    _selection_options(p)
+    p.add_argument("-o", "--output", required=True, metavar="NOTE.html", help="file to write")
+    p.add_argument("--title", help="title of the note")
+    p.add_argument("--author", help="author named in the note")
+    p.set_defaults(handler=_cmd_note)
 
     return parser
 
@@ -86,6 +167,6 @@ def main(argv: Sequence[str] | None = None) -> int:
     except RecursionError:
         print("pullproof: input nested too deeply to process", file=sys.stderr)
         return EXIT_INPUT
-    except Exception as exc:  # noqa: BLE001 - last line of defence: one line, never a traceback
+    except Exception as exc:
         print(f"pullproof: internal error: {type(exc).__name__}: {exc}", file=sys.stderr)
         return EXIT_INTERNAL

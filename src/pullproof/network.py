@@ -10,7 +10,7 @@ value is missing and where to add it (see :class:`Missing`).
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from enum import Enum
+from enum import StrEnum
 
 from .provenance import Sourced
 
@@ -29,7 +29,7 @@ __all__ = [
 ]
 
 
-class Direction(str, Enum):
+class Direction(StrEnum):
     UP = "up"
     DOWN = "down"
 

@@ -8,13 +8,13 @@ quantity plus a :class:`Provenance` saying which part field, family table entry
 from __future__ import annotations
 
 from dataclasses import dataclass
-from enum import Enum
+from enum import StrEnum
 from typing import Any
 
 __all__ = ["Origin", "Provenance", "Sourced", "Status"]
 
 
-class Origin(str, Enum):
+class Origin(StrEnum):
     """The kind of place a number was taken from."""
 
     FIELD = "field"  # a field (property) on a placed part in the schematic
@@ -27,7 +27,7 @@ class Origin(str, Enum):
     DERIVED = "derived"  # computed from other sourced numbers
 
 
-class Status(str, Enum):
+class Status(StrEnum):
     """How far a number has been confirmed, as the references describe it."""
 
     CONFIRMED = "confirmed"

@@ -8,7 +8,7 @@ JSON, HTML note). Reports read them; they never recompute a number.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from enum import Enum
+from enum import StrEnum
 
 from .network import Missing, PullNetwork
 from .provenance import Sourced
@@ -28,12 +28,12 @@ __all__ = [
 ]
 
 
-class BoundKind(str, Enum):
+class BoundKind(StrEnum):
     MIN = "min"  # R_lo (lowest resistance in the band) must be ≥ ohms
     MAX = "max"  # R_hi (highest resistance in the band) must be ≤ ohms
 
 
-class Verdict(str, Enum):
+class Verdict(StrEnum):
     """Plain-word verdicts, ordered from best to worst by :attr:`rank`."""
 
     PASS = "pass"

@@ -76,7 +76,9 @@ KEYS: Mapping[str, Key] = MappingProxyType(
         "preferred.min": Key("resistance", "1k", "below 1 kΩ a pull wastes current"),
         "preferred.max": Key("resistance", "1M", "above 1 MΩ leakage and noise dominate"),
         "i2c.mode": Key("i2c", "", "no I2C unless a [[net]] entry or a net name says so"),
-        "i2c.bus_capacitance": Key("capacitance", "200pF", "a short bus on one board"),
+        "i2c.bus_capacitance": Key(
+            "capacitance", "100pF", "a short bus on one board: a few 10 pF pins plus traces"
+        ),
     }
 )
 _NET_KEYS = frozenset(

@@ -54,7 +54,7 @@ def _digits(value: float, sig: int = 3) -> str:
 def engineering(value: float, unit: str, sig: int = 3) -> str:
     """Format ``value`` (in the base ``unit``) with an SI prefix: (4700, "Ω") → "4.7 kΩ"."""
     if math.isnan(value):
-        return "not a number"
+        return "unknown"
     if math.isinf(value):
         return "∞" if value > 0 else "−∞"
     if value == 0:

@@ -1,0 +1,397 @@
+"""Turn pulled nets found by :mod:`pullproof.topology` into resolved pull networks.
+
+Every number the constraint engine will read is attached here, with its source:
+resistor values and ratings from part fields, input levels from family data or the
+part library at each corner of the input's own supply, rail voltages from the
+rules file or the rail's name, and the project rules for the net.
+"""
+
+from __future__ import annotations
+
+import fnmatch
+from collections.abc import Mapping
+from dataclasses import dataclass
+
+from .circuit import Circuit, Net, Part
+from .families.match import PartInfo, PartKind
+from .network import (
+    CapacitorOnNet,
+    Direction,
+    DriverOnNet,
+    InputLevels,
+    InputOnNet,
+    Missing,
+    NetworkRules,
+    PullNetwork,
+    PullResistor,
+    Rail,
+    SwitchOnNet,
+)
+from .provenance import Origin, Provenance, Sourced, Status
+from .rules import RailSpec, Rules
+from .topology import PinOnNet, PullSite
+from .units import Q_
+
+__all__ = ["Resolver", "UnknownRail"]
+
+# A small-signal transistor or MOSFET sinks far more than any pull draws; used only when the
+# part says nothing (common practice: small-signal devices are rated for 100 mA and more).
+_TRANSISTOR_SINK = (Q_(10e-3, "A"), Q_(0.4, "V"))
+_TRANSISTOR_LEAK = Q_(1e-6, "A")
+_POWER_PIN_NAMES = ("VCC*", "VDD*", "IOVDD*", "DVDD*", "VIO*", "V+", "VDDIO*", "VCCIO*", "VL")
+
+
+@dataclass(frozen=True)
+class UnknownRail:
+    """A pull whose rail voltage is unknown: it cannot be judged until the rail is described."""
+
+    site: PullSite
+    rail: str
+    refs: tuple[str, ...]
+
+
+def _default(value: object, name: str, reason: str, status: Status = Status.DEFAULT) -> Sourced:
+    return Sourced(value, Provenance(Origin.DEFAULT, name, status, reason))
+
+
+def _derived(value: object, where: str) -> Sourced:
+    return Sourced(value, Provenance(Origin.DERIVED, where, Status.USER))
+
+
+class Resolver:
+    """Resolve pull sites of one circuit with one set of rules and part data."""
+
+    def __init__(self, circuit: Circuit, infos: Mapping[str, PartInfo], rules: Rules) -> None:
+        self.circuit = circuit
+        self.infos = infos
+        self.rules = rules
+        self.nets = {n.name: n for n in circuit.nets}
+
+    # ------------------------------------------------------------------ rails
+    def rail_of(self, net: Net) -> RailSpec | None:
+        """The rail a net stands for, from its name or any label on it (None: a signal)."""
+        if not net.power and not net.labels:
+            return None
+        for name in (net.name, *net.labels):
+            spec = self.rules.rail(name)
+            if spec is not None:
+                return spec
+        return None
+
+    def rail_key(self, net: Net) -> tuple[str, bool] | None:
+        spec = self.rail_of(net)
+        return None if spec is None else (spec.name, spec.ground)
+
+    def _rail(self, name: str) -> Rail | None:
+        spec = self.rules.rail(name)
+        if spec is None or spec.v_min is None or spec.v_max is None or spec.nominal is None:
+            return None
+        return Rail(spec.name, spec.v_min, spec.v_max, spec.nominal, ground=spec.ground)
+
+    def _ground(self) -> Rail:
+        zero = Sourced(Q_(0.0, "V"), Provenance(Origin.SCHEMATIC, "ground net", Status.USER))
+        return Rail("GND", zero, zero, zero, ground=True)
+
+    # ------------------------------------------------------------------ resistors
+    def _resistor(self, refs: tuple[str, ...], missing: list[Missing]) -> PullResistor | None:
+        """Combine parallel pulls into one record (worst tolerance, TCR and rating)."""
+        infos = [self.infos[r].resistor for r in refs]
+        if any(i is None or i.ohms is None for i in infos):
+            for r, i in zip(refs, infos, strict=True):
+                if i is None or i.ohms is None:
+                    missing.append(Missing(f"resistance of {r}", r, "write the Value, e.g. 4k7"))
+            return None
+        known = [i for i in infos if i is not None and i.ohms is not None]
+        first = known[0]
+        if len(known) == 1:
+            assert first.ohms is not None
+            ohms = first.ohms
+        else:
+            total = sum(1.0 / i.ohms.magnitude("ohm") for i in known if i.ohms is not None)
+            ohms = _derived(Q_(1.0 / total, "ohm"), f"{' ∥ '.join(refs)} in parallel")
+        tol = max((i.tolerance for i in known), key=lambda s: s.magnitude(""))
+        tcr = max((i.tcr for i in known), key=lambda s: s.magnitude("1/K"))
+        powers = [i.power for i in known]
+        power = (
+            None
+            if any(p is None for p in powers)
+            else min((p for p in powers if p is not None), key=lambda s: s.magnitude("W"))
+        )
+        volts = [i.working_voltage for i in known]
+        wv = (
+            None
+            if any(v is None for v in volts)
+            else min((v for v in volts if v is not None), key=lambda s: s.magnitude("V"))
+        )
+        return PullResistor(refs, ohms, tol, tcr, power, wv, size=first.size)
+
+    # ------------------------------------------------------------------ inputs
+    def _supply_of(self, part: Part) -> RailSpec | None:
+        """The rail feeding a part: the net on its power-input pin(s)."""
+        for pin in part.pins:
+            is_power = pin.type == "power_in" or any(
+                fnmatch.fnmatchcase(pin.name.upper(), p) for p in _POWER_PIN_NAMES
+            )
+            if not is_power:
+                continue
+            net = self.circuit.net_of(part.ref, pin.number)
+            spec = self.rail_of(net) if net is not None else None
+            if spec is not None and not spec.ground and spec.v_min is not None:
+                return spec
+        return None
+
+    def _input(self, pin: PinOnNet, rail: Rail) -> InputOnNet:
+        info = self.infos[pin.ref]
+        part = self.circuit.part(pin.ref)
+        assert part is not None
+        missing: list[Missing] = list(info.missing)
+        series = None
+        if pin.via:
+            res = self.infos[pin.via].resistor
+            series = res.ohms if res is not None else None
+        model = info.inputs
+        if model is not None and not any(
+            fnmatch.fnmatchcase(pin.name.upper(), g.upper()) for g in info.input_pins
+        ):
+            model = None
+            missing.append(
+                Missing(
+                    f"input data of {pin.ref} pin {pin.name}",
+                    pin.ref,
+                    "the part-library entry does not list this pin; add its name to 'pins'",
+                )
+            )
+        if model is None:
+            if not missing:
+                missing.append(
+                    Missing(
+                        f"input data of {pin.ref} pin {pin.name}",
+                        pin.ref,
+                        "add field 'pullproof.family' (e.g. HC) or a part-library entry",
+                    )
+                )
+            return InputOnNet(pin.ref, pin.pin, info.family, (), series_ohms=series,
+                              series_ref=pin.via, missing=tuple(missing))  # fmt: skip
+        supply = self._supply_of(part)
+        same = not rail.ground and (supply is None or supply.name == rail.name)
+        if supply is None or supply.v_min is None or supply.v_max is None:
+            lo, hi = rail.v_min, rail.v_max
+            note = f"assumed: {pin.ref} is powered from {rail.name} (no supply pin found)"
+            if rail.ground:  # no supply drawn for a pulled-down input: its family's whole range
+                lo, hi = model.supply_range
+                note = f"assumed: {pin.ref} may run anywhere in its family's supply range"
+            lo = Sourced(lo.value, Provenance(Origin.DERIVED, note, Status.USER))
+            hi = Sourced(hi.value, Provenance(Origin.DERIVED, note, Status.USER))
+        else:
+            lo, hi = supply.v_min, supply.v_max
+        v_lo, v_hi = lo.magnitude("V"), hi.magnitude("V")
+        corners: list[InputLevels] = [model.at(lo)]
+        for bp in model.breakpoints:
+            if v_lo + 1e-9 < bp < v_hi - 1e-9:
+                corners.append(model.at(_derived(Q_(bp, "V"), "family table breakpoint")))
+        if v_hi > v_lo + 1e-12:
+            corners.append(model.at(hi))
+        return InputOnNet(
+            pin.ref,
+            pin.pin,
+            info.family,
+            tuple(corners),
+            same_supply_as_pull=same,
+            series_ohms=series,
+            series_ref=pin.via,
+            internal_pull=model.internal_pull,
+            schmitt=model.schmitt,
+            missing=tuple(missing),
+        )
+
+    # ------------------------------------------------------------------ switches, drivers
+    def _far_rail(self, far_net: str) -> RailSpec | None:
+        net = self.nets.get(far_net)
+        return self.rail_of(net) if net is not None else None
+
+    def _switch(self, pin: PinOnNet, direction: Direction) -> SwitchOnNet:
+        ratings = self.infos[pin.ref].ratings
+        far = self._far_rail(pin.far_net)
+        against = far is not None and (far.ground if direction is Direction.UP else not far.ground)
+        other = far.name if far is not None else (pin.far_net or "another pin of the part")
+        return SwitchOnNet(
+            pin.ref,
+            other,
+            against,
+            ratings.get("contact_max"),
+            ratings.get("wetting"),
+            ratings.get("bounce"),
+        )
+
+    def _driver(self, pin: PinOnNet) -> DriverOnNet:
+        info = self.infos[pin.ref]
+        part = self.circuit.part(pin.ref)
+        assert part is not None
+        r = info.ratings
+        fields = {k: self._field_current_or_voltage(part, k) for k in ("i_ol", "v_ol", "i_off")}
+        if info.kind is PartKind.OPTOCOUPLER:
+            return DriverOnNet(
+                pin.ref, pin.pin, "optocoupler", None, r.get("vce_sat"),
+                fields["i_off"] or r.get("dark_current"),
+                ctr_min=r.get("ctr_min"), ageing=r.get("ageing"), i_f_min=r.get("i_f"),
+                vce_sat=r.get("vce_sat"),
+            )  # fmt: skip
+        if info.kind is PartKind.TRANSISTOR:
+            i_ol = fields["i_ol"] or _default(
+                _TRANSISTOR_SINK[0], "default transistor sink current", "small-signal "
+                "transistors sink far more than a pull draws", Status.COMMON_PRACTICE
+            )  # fmt: skip
+            v_ol = fields["v_ol"] or _default(
+                _TRANSISTOR_SINK[1], "default transistor saturation voltage",
+                "small-signal saturation is below 0.4 V at these currents",
+                Status.COMMON_PRACTICE,
+            )  # fmt: skip
+            i_off = fields["i_off"] or _default(
+                _TRANSISTOR_LEAK, "default transistor off-state leakage",
+                "small-signal transistors leak well under 1 µA when off", Status.COMMON_PRACTICE,
+            )  # fmt: skip
+            return DriverOnNet(pin.ref, pin.pin, "transistor", i_ol, v_ol, i_off)
+        kind = "open-collector" if "collector" in pin.name.lower() else "open-drain"
+        return DriverOnNet(pin.ref, pin.pin, kind, fields["i_ol"], fields["v_ol"], fields["i_off"])
+
+    @staticmethod
+    def _field_current_or_voltage(part: Part, key: str) -> Sourced | None:
+        from .units import parse_current, parse_voltage
+
+        text = part.field(f"pullproof.{key}")
+        if text is None:
+            return None
+        reader = parse_voltage if key.startswith("v_") else parse_current
+        value = reader(text, field=f"pullproof.{key}", part=part.ref)
+        where = f"field 'pullproof.{key}' on {part.ref}"
+        return Sourced(abs(value), Provenance(Origin.FIELD, where, Status.USER))
+
+    def _capacitor(self, pin: PinOnNet, missing: list[Missing]) -> CapacitorOnNet | None:
+        farads = self.infos[pin.ref].ratings.get("capacitance")
+        if farads is None:
+            missing.append(
+                Missing(f"capacitance of {pin.ref}", pin.ref, "write the Value, e.g. 100n")
+            )
+            return None
+        far = self._far_rail(pin.far_net)
+        return CapacitorOnNet(pin.ref, farads, far.name if far else pin.far_net)
+
+    # ------------------------------------------------------------------ mains
+    def mains_reason(self, site: PullSite) -> str:
+        """Why this network sits next to mains ("" when it does not)."""
+        if self.rules.is_mains(site.net.name):
+            return f"the net {site.net.name} matches a mains pattern"
+        for pin in (*site.drivers, *site.switches):
+            part = self.circuit.part(pin.ref)
+            if part is None:
+                continue
+            for other in self._nets_near(part, site.net.name):
+                if self.rules.is_mains(other):
+                    return f"{pin.ref} also connects to the mains net {other}"
+        return ""
+
+    def _nets_near(self, part: Part, exclude: str) -> set[str]:
+        """Nets on the part's other pins, and one two-terminal part beyond them."""
+        first = {
+            n.name
+            for p in part.pins
+            if (n := self.circuit.net_of(part.ref, p.number)) is not None and n.name != exclude
+        }
+        found = set(first)
+        for name in first:
+            net = self.nets[name]
+            for m in net.members:
+                other = self.circuit.part(m.ref)
+                if other is None or other.ref == part.ref or len(other.pins) != 2:
+                    continue
+                for p in other.pins:
+                    far = self.circuit.net_of(other.ref, p.number)
+                    if far is not None:
+                        found.add(far.name)
+        return found
+
+    # ------------------------------------------------------------------ rules
+    def net_rules(self, net: str, rail: Rail | None) -> NetworkRules:
+        """The project rules for one net; a margin given as a fraction scales with the rail."""
+        nr = self.rules.for_net(net)
+        margin = nr.margin
+        if margin.value.dimensionless and rail is not None:
+            volts = margin.magnitude("") * rail.v_nom.magnitude("V")
+            margin = _derived(Q_(volts, "V"), f"{margin.source.where} × {rail.name} nominal")
+        get = self.rules.get
+        return NetworkRules(
+            margin=margin,
+            derating=get("derating"),
+            temp_min=get("temperature.min"),
+            temp_max=get("temperature.max"),
+            temp_ref=get("temperature.ref"),
+            series=self.rules.series,
+            policy=self.rules.policy,
+            preferred_min=get("preferred.min"),
+            preferred_max=get("preferred.max"),
+            current_budget=nr.current_budget,
+            bounce_time=nr.bounce,
+            edge_time_max=nr.edge_time,
+            i2c_mode=nr.i2c_mode,
+            bus_capacitance=nr.bus_capacitance,
+        )
+
+    # ------------------------------------------------------------------ the network
+    def resolve(
+        self, site: PullSite, direction: Direction, pulls: tuple[tuple[str, str], ...]
+    ) -> PullNetwork | UnknownRail:
+        """The resolved network for the pulls of one direction on a site."""
+        refs = tuple(r for r, _ in pulls)
+        rail_name = pulls[0][1]
+        rail = self._ground() if direction is Direction.DOWN else self._rail(rail_name)
+        if rail is None:
+            return UnknownRail(site, rail_name, refs)
+        missing: list[Missing] = []
+        resistor = self._resistor(refs, missing)
+        if resistor is None:
+            return UnknownRail(site, rail_name, refs)  # no value: nothing can be judged
+        inputs = tuple(self._input(p, rail) for p in site.inputs)
+        switches = tuple(self._switch(p, direction) for p in site.switches)
+        drivers = tuple(self._driver(p) for p in site.drivers)
+        caps = tuple(c for p in site.capacitors if (c := self._capacitor(p, missing)) is not None)
+        if not inputs and not drivers:
+            missing.append(
+                Missing(
+                    f"a logic input on {site.net.name}",
+                    "",
+                    "the net reaches no logic input pin; check the symbol's pin types or add "
+                    "a part-library entry for the receiving part",
+                )
+            )
+        opposite = self._opposite(direction, switches, drivers)
+        mains = self.mains_reason(site)
+        return PullNetwork(
+            net=site.net.name,
+            sheet=site.sheet,
+            direction=direction,
+            rail=rail,
+            resistor=resistor,
+            inputs=inputs,
+            rules=self.net_rules(site.net.name, opposite if rail.ground and opposite else rail),
+            switches=switches,
+            drivers=drivers,
+            capacitors=caps,
+            opposite_rail=opposite,
+            mains_adjacent=bool(mains),
+            mains_reason=mains,
+            missing=tuple(missing),
+        )
+
+    def _opposite(
+        self,
+        direction: Direction,
+        switches: tuple[SwitchOnNet, ...],
+        drivers: tuple[DriverOnNet, ...],
+    ) -> Rail | None:
+        """The rail a switch pulls toward (ground for a pull-up's drivers)."""
+        if direction is Direction.UP:
+            return self._ground() if (drivers or any(s.pulls_against for s in switches)) else None
+        for s in switches:
+            if s.pulls_against:
+                return self._rail(s.other_side)
+        return None

@@ -1,0 +1,150 @@
+"""The ``pullproof.review/1`` JSON document (see README, "JSON output")."""
+
+from __future__ import annotations
+
+import math
+from typing import Any
+
+from ..network import Missing
+from ..provenance import Sourced
+from ..results import Bound, Check, Finding, NetworkResult, ReviewResult, Skipped, Term
+
+__all__ = ["SCHEMA", "review_json"]
+
+SCHEMA = "pullproof.review/1"
+
+
+def _num(s: Sourced | None, unit: str) -> float | None:
+    if s is None:
+        return None
+    x = s.magnitude(unit)
+    return x if math.isfinite(x) else None  # an unknown value is null, never NaN
+
+
+def _term(t: Term) -> dict[str, Any]:
+    q = t.value.value
+    return {
+        "symbol": t.symbol,
+        "value": float(q.magnitude) if hasattr(q, "magnitude") else float(q),
+        "unit": f"{q.units:~P}" if hasattr(q, "units") else "",
+        "source": {
+            "origin": t.value.source.origin.value,
+            "where": t.value.source.where,
+            "status": t.value.source.status.value,
+            "reason": t.value.source.reason,
+        },
+    }
+
+
+def _missing(m: Missing) -> dict[str, str]:
+    return {"what": m.what, "ref": m.ref, "hint": m.hint}
+
+
+def _bound(b: Bound) -> dict[str, Any]:
+    return {
+        "constraint": b.constraint,
+        "title": b.title,
+        "kind": b.kind.value,
+        "ohms": b.ohms,
+        "hard": b.hard,
+        "formula": b.formula,
+        "substituted": b.substituted,
+        "source": b.source,
+        "corner": b.corner,
+        "terms": [_term(t) for t in b.terms],
+        "missing": [_missing(m) for m in b.missing],
+    }
+
+
+def _check(c: Check) -> dict[str, Any]:
+    return {
+        "constraint": c.constraint,
+        "title": c.title,
+        "ok": c.ok,
+        "hard": c.hard,
+        "formula": c.formula,
+        "substituted": c.substituted,
+        "source": c.source,
+        "terms": [_term(t) for t in c.terms],
+        "missing": [_missing(m) for m in c.missing],
+    }
+
+
+def _network(r: NetworkResult) -> dict[str, Any]:
+    n = r.network
+    rec = r.recommendation
+    return {
+        "net": n.net,
+        "sheet": n.sheet,
+        "direction": n.direction.value,
+        "rail": n.rail.name,
+        "rail_volts": [_num(n.rail.v_min, "V"), _num(n.rail.v_max, "V")],
+        "resistors": [
+            {
+                "ref": ref,
+                "value_ohms": _num(n.resistor.ohms, "ohm"),
+                "tolerance": _num(n.resistor.tolerance, ""),
+            }
+            for ref in n.resistor.refs
+        ],
+        "band_ohms": list(r.band),
+        "inputs": [
+            {"ref": i.ref, "pin": i.pin, "family": i.family or None, "via": i.series_ref or None}
+            for i in n.inputs
+        ],
+        "switches": [
+            {"ref": s.ref, "other_side": s.other_side, "pulls_against": s.pulls_against}
+            for s in n.switches
+        ],
+        "drivers": [{"ref": d.ref, "pin": d.pin, "kind": d.kind} for d in n.drivers],
+        "capacitors": [
+            {"ref": c.ref, "farads": _num(c.farads, "F"), "to": c.to} for c in n.capacitors
+        ],
+        "mains_adjacent": n.mains_adjacent,
+        "window_ohms": list(r.window),
+        "margins": list(r.margins),
+        "verdict": r.verdict.value,
+        "reason": r.reason,
+        "binding": list(r.binding),
+        "advice": list(r.advice),
+        "recommended_ohms": rec.pick if rec else None,
+        "recommendation": None
+        if rec is None
+        else {
+            "series": rec.series,
+            "tolerance": rec.tolerance,
+            "candidates_ohms": list(rec.candidates),
+            "pick_ohms": rec.pick,
+            "policy": rec.policy,
+            "reason": rec.reason,
+        },
+        "bounds": [_bound(b) for b in r.bounds],
+        "checks": [_check(c) for c in r.checks],
+        "missing": [_missing(m) for m in r.missing],
+    }
+
+
+def _finding(f: Finding) -> dict[str, Any]:
+    return {
+        "kind": f.kind,
+        "severity": f.severity.value,
+        "net": f.net,
+        "refs": list(f.refs),
+        "message": f.message,
+    }
+
+
+def _skipped(s: Skipped) -> dict[str, str]:
+    return {"ref": s.ref, "net": s.net, "reason": s.reason}
+
+
+def review_json(result: ReviewResult) -> dict[str, Any]:
+    """The review as a JSON-ready dict following schema ``pullproof.review/1``."""
+    return {
+        "schema": SCHEMA,
+        "root": result.root,
+        "worst": result.worst.value,
+        "networks": [_network(r) for r in result.networks],
+        "findings": [_finding(f) for f in result.findings],
+        "skipped": [_skipped(s) for s in result.skipped],
+    }

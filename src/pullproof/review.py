@@ -1,0 +1,366 @@
+"""Review a schematic: the library entry point behind ``pullproof review`` and ``note``.
+
+``review(root)`` reads the schematic, resolves every part against family data,
+the part library and the rules, finds the pull networks, judges each one and
+collects findings. It returns plain records (:class:`~pullproof.results.ReviewResult`)
+that every report renders without recomputing anything.
+"""
+
+from __future__ import annotations
+
+import fnmatch
+import math
+import os
+import re
+from collections.abc import Iterable, Sequence
+from dataclasses import dataclass, replace
+from pathlib import Path
+
+from .circuit import Circuit, Part
+from .detect import Resolver, UnknownRail
+from .errors import PullproofError
+from .evaluate import evaluate
+from .families.match import (
+    LibraryEntry,
+    PartInfo,
+    PartKind,
+    PartLibrary,
+    load_part_library,
+    resolve_part,
+)
+from .nets import build_circuit
+from .network import Direction, Missing, PullNetwork, PullResistor, Rail
+from .provenance import Origin, Provenance, Sourced, Status
+from .results import Finding, NetworkResult, ReviewResult, Skipped, Verdict
+from .rules import RULES_FILE, Rules, load_rules
+from .topology import PullSite, find_pulls
+from .units import Q_
+
+__all__ = ["PARTS_FILE", "Selection", "parse_ref_list", "review"]
+
+PARTS_FILE = "pullproof-parts.toml"  # a part library beside the root is read automatically
+
+
+class SelectionError(PullproofError, ValueError):
+    """A --ref or --where option that cannot be read."""
+
+
+@dataclass(frozen=True)
+class Selection:
+    """Which pull resistors to judge: by reference (``R3,R7-R12``) and/or field value."""
+
+    refs: frozenset[str] | None = None
+    where: tuple[tuple[str, str], ...] = ()
+
+    def wants(self, part: Part) -> bool:
+        if self.refs is not None and part.ref not in self.refs:
+            return False
+        for name, pattern in self.where:
+            text = part.value if name.casefold() == "value" else part.field(name)
+            if text is None or not fnmatch.fnmatchcase(text.casefold(), pattern.casefold()):
+                return False
+        return True
+
+    @property
+    def active(self) -> bool:
+        return self.refs is not None or bool(self.where)
+
+
+_RANGE = re.compile(r"^([A-Za-z#_]+)(\d+)-(?:\1)?(\d+)$")
+
+
+def parse_ref_list(text: str) -> frozenset[str]:
+    """``"R3,R7-R12"`` → {R3, R7, R8, …, R12}.
+
+    Raises:
+        SelectionError: a range that runs backwards or an empty item.
+    """
+    refs: set[str] = set()
+    for item in (t.strip() for t in text.split(",")):
+        if not item:
+            raise SelectionError(f"--ref: empty item in {text!r}; expected e.g. R3,R7-R12")
+        m = _RANGE.match(item)
+        if m is None:
+            refs.add(item)
+            continue
+        prefix, a, b = m.group(1), int(m.group(2)), int(m.group(3))
+        if b < a:
+            raise SelectionError(f"--ref: range {item!r} runs backwards; expected e.g. R7-R12")
+        refs.update(f"{prefix}{n}" for n in range(a, b + 1))
+    return frozenset(refs)
+
+
+def parse_where(items: Iterable[str]) -> tuple[tuple[str, str], ...]:
+    """``["Tolerance=1%"]`` → (("Tolerance", "1%"),); the value may be a glob."""
+    out = []
+    for item in items:
+        name, sep, value = item.partition("=")
+        if not sep or not name.strip():
+            raise SelectionError(f"--where: cannot read {item!r}; expected FIELD=VALUE")
+        out.append((name.strip(), value.strip()))
+    return tuple(out)
+
+
+def _library(root: Path, parts: Sequence[Path]) -> PartLibrary:
+    paths = list(parts)
+    beside = root.parent / PARTS_FILE
+    if not paths and beside.is_file():
+        paths.append(beside)
+    entries: list[LibraryEntry] = []
+    for p in paths:
+        entries.extend(load_part_library(p).entries)
+    return PartLibrary(tuple(entries))
+
+
+def _findings_for_site(
+    resolver: Resolver, site: PullSite, infos: dict[str, PartInfo]
+) -> list[Finding]:
+    out: list[Finding] = []
+    if site.ups and site.downs:
+        up = ", ".join(r for r, _ in site.ups)
+        down = ", ".join(r for r, _ in site.downs)
+        out.append(
+            Finding(
+                "up-and-down",
+                Verdict.FAIL if site.inputs else Verdict.MARGINAL,
+                site.net.name,
+                tuple(r for r, _ in (*site.ups, *site.downs)),
+                f"{up} pulls up and {down} pulls down: together they form a divider that sets "
+                f"{_divider_text(resolver, site)}; a logic input needs one pull, not a level "
+                "between the thresholds",
+            )
+        )
+    if not site.inputs and not site.drivers:
+        refs = tuple(r for r, _ in (*site.ups, *site.downs))
+        out.append(
+            Finding(
+                "pull-without-input",
+                Verdict.INCOMPLETE,
+                site.net.name,
+                refs,
+                f"{', '.join(refs)} pulls {site.net.name}, which reaches no logic input; "
+                "nothing on the schematic says what level it must hold",
+            )
+        )
+    return out
+
+
+def _divider_text(resolver: Resolver, site: PullSite) -> str:
+    """The divider's node voltage range from nominal values, when the values and rail are known."""
+    spec = resolver.rules.rail(site.ups[0][1])
+    ups = [resolver.infos[r].resistor for r, _ in site.ups]
+    downs = [resolver.infos[r].resistor for r, _ in site.downs]
+    values = [[i.ohms.magnitude("ohm") for i in group if i is not None and i.ohms is not None]
+              for group in (ups, downs)]  # fmt: skip
+    if spec is None or spec.v_min is None or spec.v_max is None:
+        return "a level between the rails"
+    if len(values[0]) != len(ups) or len(values[1]) != len(downs):
+        return "a level between the rails"
+    ru, rd = (1.0 / sum(1.0 / r for r in group) for group in values)
+    lo = spec.v_min.magnitude("V") * rd / (ru + rd)
+    hi = spec.v_max.magnitude("V") * rd / (ru + rd)
+    return f"the node at {lo:.3g}–{hi:.3g} V (nominal resistances)"
+
+
+def _unknown_rail_result(u: UnknownRail, resolver: Resolver) -> NetworkResult | Finding:
+    """A pull that cannot be judged yet: an incomplete network when only the rail voltage
+    is unknown, a finding when the resistor's own value is unreadable."""
+    infos = [resolver.infos[r].resistor for r in u.refs]
+    if any(i is None or i.ohms is None for i in infos):
+        return Finding(
+            "unreadable-value",
+            Verdict.INCOMPLETE,
+            u.site.net.name,
+            u.refs,
+            f"{', '.join(u.refs)} pulls {u.site.net.name} but its Value cannot be read as a "
+            "resistance; write it like 4k7 or 10k",
+        )
+    hint = f'add [rails] {u.rail} = "3V3" (its nominal voltage) to {RULES_FILE}'
+    missing = Missing(f"the voltage of rail {u.rail}", "", hint)
+    unknown = Sourced(
+        Q_(math.nan, "V"),
+        Provenance(Origin.SCHEMATIC, f"rail {u.rail}: voltage unknown", Status.USER, hint),
+    )
+    rail = Rail(u.rail, unknown, unknown, unknown)
+    first = infos[0]
+    assert first is not None and first.ohms is not None
+    resistor = PullResistor(
+        u.refs, first.ohms, first.tolerance, first.tcr, first.power, first.working_voltage,
+        size=first.size,
+    )  # fmt: skip
+    network = PullNetwork(
+        net=u.site.net.name,
+        sheet=u.site.sheet,
+        direction=Direction.UP,
+        rail=rail,
+        resistor=resistor,
+        inputs=(),
+        rules=resolver.net_rules(u.site.net.name, None),
+        missing=(missing,),
+    )
+    r = first.ohms.magnitude("ohm")
+    tol = first.tolerance.magnitude("")
+    return NetworkResult(
+        network=network,
+        bounds=(),
+        window=(None, None),
+        band=(r * (1 - tol), r * (1 + tol)),
+        verdict=Verdict.INCOMPLETE,
+        reason=f"Cannot judge yet: the voltage of rail {u.rail} is unknown; {hint}.",
+        margins=(None, None),
+        binding=(),
+        recommendation=None,
+        missing=(missing,),
+    )
+
+
+def _check_findings(result: NetworkResult) -> list[Finding]:
+    """Failed input-tolerance checks are also findings: the rail is wrong, not the value."""
+    out = []
+    for c in result.checks:
+        if c.constraint == "input-tolerance" and c.ok is False:
+            n = result.network
+            out.append(
+                Finding(
+                    "rail-above-input-tolerance",
+                    Verdict.FAIL,
+                    n.net,
+                    (*n.resistor.refs, *(i.ref for i in n.inputs)),
+                    f"{', '.join(n.resistor.refs)} pulls {n.net} to {n.rail.name}, above what an "
+                    f"input on it tolerates ({c.substituted})",
+                )
+            )
+    return out
+
+
+def review(
+    root: str | os.PathLike[str],
+    *,
+    rules: str | os.PathLike[str] | None = None,
+    parts: Sequence[str | os.PathLike[str]] = (),
+    select: Selection | None = None,
+) -> ReviewResult:
+    """Review every pull resistor of the schematic rooted at ``root``.
+
+    Args:
+        root: the root schematic file.
+        rules: an explicit rules file; by default ``pullproof.toml`` beside the root.
+        parts: part-library files; by default ``pullproof-parts.toml`` beside the root.
+        select: restrict the judged resistors (``--ref``, ``--where``).
+
+    Raises:
+        PullproofError: unreadable or malformed schematic, rules, part library or field.
+    """
+    root_path = Path(root)
+    circuit = build_circuit(root_path)
+    rules_obj = load_rules(root_path, Path(rules) if rules is not None else None)
+    library = _library(root_path, [Path(p) for p in parts])
+    return review_circuit(circuit, rules_obj, library, select or Selection())
+
+
+def review_circuit(
+    circuit: Circuit, rules: Rules, library: PartLibrary, select: Selection
+) -> ReviewResult:
+    """Review an already-built circuit (the rest of :func:`review`)."""
+    infos = {p.ref: resolve_part(p, library, rules) for p in circuit.parts}
+    resolver = Resolver(circuit, infos, rules)
+    topo = find_pulls(circuit, lambda p: _kind_word(infos[p.ref]), resolver.rail_key)
+
+    def chosen(refs: Iterable[str]) -> bool:
+        if not select.active:
+            return True
+        return any((p := circuit.part(r)) is not None and select.wants(p) for r in refs)
+
+    results: list[NetworkResult] = []
+    findings: list[Finding] = []
+    skipped = [Skipped(a.ref, a.net, a.reason) for a in topo.set_aside if chosen([a.ref])]
+    for site in topo.sites:
+        all_refs = [r for r, _ in (*site.ups, *site.downs)]
+        if not chosen(all_refs):
+            continue
+        findings.extend(_findings_for_site(resolver, site, infos))
+        if site.ups and site.downs and site.inputs:
+            reason = "part of an up/down divider on a logic input (see the finding)"
+            skipped.extend(Skipped(r, site.net.name, reason) for r in all_refs)
+            continue
+        if site.ups and site.downs:
+            reason = "divider into an analog or feedback node: both an up and a down pull"
+            skipped.extend(Skipped(r, site.net.name, reason) for r in all_refs)
+            continue
+        direction = Direction.UP if site.ups else Direction.DOWN
+        pulls = site.ups or site.downs
+        rails = {rail for _, rail in pulls}
+        resolved = resolver.resolve(site, direction, pulls)
+        if isinstance(resolved, UnknownRail):
+            unjudged = _unknown_rail_result(resolved, resolver)
+            if isinstance(unjudged, Finding):
+                findings.append(unjudged)
+            else:
+                results.append(unjudged)
+            continue
+        if len(rails) > 1:
+            resolved = replace(
+                resolved,
+                notes=(*resolved.notes, f"parallel pulls go to different rails: {sorted(rails)}"),
+            )
+        result = evaluate(resolved)
+        results.append(result)
+        findings.extend(_check_findings(result))
+    for net, switches, inputs in topo.unpulled_switch_inputs:
+        refs = tuple(sorted({p.ref for p in (*switches, *inputs)}))
+        if not chosen(refs) or any(_has_internal_pull(circuit, p.ref) for p in inputs):
+            continue
+        sw = ", ".join(sorted({p.ref for p in switches}))
+        ins = ", ".join(f"{p.ref} pin {p.name}" for p in inputs)
+        # A microcontroller pin may have its internal pull enabled by firmware, which the
+        # schematic cannot show: flag it for confirmation rather than as a certain failure.
+        mcu = all(infos[p.ref].kind is PartKind.MCU for p in inputs)
+        tail = (
+            "; if firmware enables the pin's internal pull, record it with field "
+            "'pullproof.internal_pull' on the part"
+            if mcu
+            else ""
+        )
+        findings.append(
+            Finding(
+                "floating-input",
+                Verdict.MARGINAL if mcu else Verdict.FAIL,
+                net.name,
+                refs,
+                f"{ins} is driven only by {sw} and has no pull: it floats while the contact "
+                f"is open{tail}",
+            )
+        )
+    files = tuple(sorted(circuit.files.items()))
+    return ReviewResult(
+        root=circuit.root,
+        networks=tuple(sorted(results, key=lambda r: r.network.net)),
+        findings=tuple(findings),
+        skipped=tuple(sorted(skipped, key=lambda s: (s.net, s.ref))),
+        files=files,
+        rules_file=rules.file or None,
+    )
+
+
+def _has_internal_pull(circuit: Circuit, ref: str) -> bool:
+    """An input whose part declares an enabled internal pull does not float."""
+    part = circuit.part(ref)
+    return part is not None and part.field("pullproof.internal_pull") is not None
+
+
+def _kind_word(info: PartInfo) -> str:
+    """Map the data module's part kinds onto the words topology uses."""
+    return {
+        PartKind.RESISTOR: "resistor",
+        PartKind.CAPACITOR: "capacitor",
+        PartKind.SWITCH: "switch",
+        PartKind.RELAY: "relay",
+        PartKind.OPTOCOUPLER: "optocoupler",
+        PartKind.LED: "led",
+        PartKind.DIODE: "diode",
+        PartKind.TRANSISTOR: "transistor",
+        PartKind.LOGIC: "logic",
+        PartKind.MCU: "mcu",
+        PartKind.CONNECTOR: "connector",
+        PartKind.OPAMP: "opamp",
+    }.get(info.kind, "ic" if info.inputs is not None else "other")
