@@ -191,6 +191,10 @@ def _judge(
                 f"{eng(_ohms(edge), 'Ω')} {what} from {edge.title.lower()}; "
                 f"the rules ask for {pct(threshold)}."
             )
+        nearest = eng(_ohms(edge), "Ω")
+        if ratio >= 1.0:
+            # A percentage in the thousands reads as noise: name the nearest limit instead.
+            return Verdict.PASS, f"{fitted}, well inside the window (nearest limit {nearest})."
         return Verdict.PASS, f"{fitted}, at least {pct(ratio)} inside the window."
     return Verdict.PASS, f"{fitted}; no constraint limits the resistance on this net."
 

@@ -33,6 +33,9 @@ _POWER_NAME = re.compile(
 )
 _OUTPUT_NAME = re.compile(r"(?i)^(~?\{?)?(Q\d*|Q\d*#|~Q|Y\d*|O\d*|OUT\w*|DO\w*|TX\w*|MISO)\}?$")
 _ANALOG_NAME = re.compile(r"(?i)(ADC|AIN|VSENSE|SENSE|FB|ADJ|VREF|COMP|ISET|PROG|RT|CT)")
+# One part of a pin's name ("GPIO26_ADC0" → "ADC0") that says the pin can be an ADC input.
+_ADC_PART = re.compile(r"(?i)^(ADC\w*|AIN\d*|AN\d+)$")
+_NAME_SPLIT = re.compile(r"[_/\s,|]+")
 _USB_CC_NAME = re.compile(r"(?i)^(CC\d?|VCONN)$")
 _SHIELD_NAME = re.compile(r"(?i)(SHIELD|SHLD|^SH\d*$|CHASSIS|SH\d$)")
 
@@ -149,7 +152,7 @@ class _Scanner:
         out: dict[str, list[PinOnNet]] = {
             k: [] for k in ("inputs", "switches", "drivers", "capacitors", "connectors", "series")
         }
-        out.update(leds=[], opamps=[], analog=[], transistors=[], usb_cc=[], other=[])
+        out.update(leds=[], opamps=[], analog=[], adc=[], transistors=[], usb_cc=[], other=[])
         for m in net.members:
             if m.ref in exclude:
                 continue
@@ -180,6 +183,9 @@ class _Scanner:
                     out["analog"].append(pin)
                 else:
                     out["inputs"].append(pin)
+                    # A GPIO that doubles as an ADC input: a divider into it is a measurement.
+                    if any(_ADC_PART.match(word) for word in _NAME_SPLIT.split(m.name)):
+                        out["adc"].append(pin)
             else:
                 out["other"].append(pin)
         return out
@@ -207,6 +213,10 @@ def _set_aside_reason(net: Net, groups: dict[str, list[PinOnNet]], has_both: boo
     if groups["opamps"]:
         p = groups["opamps"][0]
         return f"op-amp bias or gain resistor: the net reaches {p.ref} pin {p.pin} ({p.name})"
+    if has_both and (groups["analog"] or groups["adc"]):
+        # An up and a down pull into a pin that can read an ADC divide a voltage to measure it.
+        p = (groups["analog"] or groups["adc"])[0]
+        return f"divider into an analog or feedback node: the net reaches {p.ref} pin {p.name}"
     if groups["analog"] and not inputs:
         p = groups["analog"][0]
         what = "divider into an analog or feedback node" if has_both else "analog or feedback bias"
@@ -224,6 +234,13 @@ def _set_aside_reason(net: Net, groups: dict[str, list[PinOnNet]], has_both: boo
     if passive_only and ends:
         if all(_SHIELD_NAME.search(p.name) for p in ends):
             return "shield or chassis bleed resistor: the net reaches only shield pins"
+        if len({p.ref for p in ends}) == 1 and len(ends) >= 2:
+            # Several pins of one part joined only to a rail resistor: a connector's shield tabs.
+            pins = ", ".join(p.pin for p in ends)
+            return (
+                f"shield or chassis bleed resistor: the net joins only pins {pins} of "
+                f"{ends[0].ref}, as a connector's shield tabs do"
+            )
         refs = ", ".join(sorted({p.ref for p in ends}))
         return (
             f"the net reaches only connector or unclassified pins ({refs}): a shield bleed or an "
