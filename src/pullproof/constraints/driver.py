@@ -72,8 +72,8 @@ def _sink(network: PullNetwork, d: DriverOnNet) -> Bound | Check:
                 Missing(
                     f"{name} of {d.ref} pin {d.pin}",
                     d.ref,
-                    "add the output's guaranteed sink current and V_OL to its "
-                    "family or part-library entry",
+                    "add fields 'pullproof.i_ol' (e.g. 4mA) and 'pullproof.v_ol' (e.g. 0.4V) "
+                    "on the driving part",
                 )
             )
     if missing:
@@ -173,20 +173,18 @@ def _opto(network: PullNetwork, d: DriverOnNet) -> Bound | Check:
     if isinstance(span, Missing):
         missing.append(span)
     named = (
-        ("CTR_min", d.ctr_min),
-        ("CTR ageing factor", d.ageing),
-        ("I_F,min", d.i_f_min),
-        ("V_CE(sat)", d.vce_sat),
+        ("CTR_min", d.ctr_min, "pullproof.ctr_min", "50%"),
+        ("CTR ageing factor", d.ageing, "pullproof.ageing", "50%"),
+        ("I_F,min", d.i_f_min, "pullproof.i_f", "5mA"),
+        ("V_CE(sat)", d.vce_sat, "pullproof.vce_sat", "0.4V"),
     )
-    for name, val in named:
+    for name, val, field, example in named:
         if val is None:
             missing.append(
                 Missing(
                     f"{name} of {d.ref}",
                     d.ref,
-                    "add it as a field 'pullproof.<name>' or a part-library entry"
-                    if name != "CTR ageing factor"
-                    else "set the optocoupler ageing factor in the rules",
+                    f"add field '{field}' (e.g. {example}) or a part-library entry",
                 )
             )
     if missing:

@@ -72,7 +72,7 @@ def _hold(network: PullNetwork, *, up: bool) -> tuple[Bound | Check, ...]:
                 Missing(
                     f"off-state leakage of {d.ref} pin {d.pin}",
                     d.ref,
-                    "add the driver's off-state leakage (or dark current) to its part entry",
+                    "add field 'pullproof.i_off' (off-state leakage, e.g. 1uA) on the driving part",
                 )
             )
         else:

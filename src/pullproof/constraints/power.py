@@ -34,7 +34,7 @@ def resistor_power(network: PullNetwork) -> tuple[Bound | Check, ...]:
             Missing(
                 f"power rating of {'/'.join(res.refs)}",
                 res.refs[0],
-                "add a field 'pullproof.power' (e.g. 0.1W) or a 'Size' field such as 0603",
+                "add field 'Power' (e.g. 0.1W), or a chip size in the Value or footprint",
             )
         )
     if missing:
@@ -93,7 +93,7 @@ def working_voltage(network: PullNetwork) -> tuple[Bound | Check, ...]:
             Missing(
                 f"working voltage of {'/'.join(res.refs)}",
                 res.refs[0],
-                "add a field 'pullproof.working_voltage' (e.g. 50V) or a 'Size' field such as 0603",
+                "add field 'pullproof.working_voltage' (e.g. 50V), or a chip size (10k 0603)",
             )
         )
     if missing:

@@ -94,6 +94,9 @@ FIELDS: Mapping[str, FieldDoc] = MappingProxyType(
         "pullproof.i_f": FieldDoc("optocoupler", "least LED forward current when on", "5mA"),
         "pullproof.dark_current": FieldDoc("optocoupler", "output leakage when off", "100nA"),
         "pullproof.vce_sat": FieldDoc("optocoupler", "output saturation voltage", "0.4V"),
+        "pullproof.i_ol": FieldDoc("open-drain driver", "guaranteed sink current at V_OL", "4mA"),
+        "pullproof.v_ol": FieldDoc("open-drain driver", "output low voltage at I_OL", "0.4V"),
+        "pullproof.i_off": FieldDoc("driver", "off-state leakage into the pin", "1uA"),
     }
 )
 

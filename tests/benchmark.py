@@ -1,0 +1,99 @@
+"""Speed and memory of reading, connecting and reviewing schematics.
+
+Not a test (pytest does not collect it): run it by hand and copy the table into the
+README's "Performance" section::
+
+    python tests/benchmark.py            # synthetic boards of 50, 200 and 800 pull networks
+    python tests/benchmark.py --sizes 100 --repeat 5
+
+Goals (README): a real 500 kB schematic is read and connected in under 1 s and
+reviewed in under 2 s; a synthetic board with 800 pull networks reviews in under 15 s;
+peak Python heap stays under 300 MB for all of them.
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+import tempfile
+import time
+import tracemalloc
+from collections.abc import Callable
+from pathlib import Path
+from typing import Any
+
+HERE = Path(__file__).resolve().parent
+sys.path.insert(0, str(HERE))
+
+from builder import HEX_INVERTER_PINS, SWITCH_PINS, SchematicBuilder  # noqa: E402
+from pullproof.nets import build_circuit  # noqa: E402
+from pullproof.review import review  # noqa: E402
+
+REALWORLD = HERE.parent / ".." / "shared" / "realworld"
+
+
+def synthetic_board(n: int, folder: Path) -> Path:
+    """A board of ``n`` button inputs: +5V pull-up, push button to GND, 74HC14 gate input."""
+    b = SchematicBuilder()
+    gates = (1, 3, 5, 9, 11, 13)
+    for i in range(n):
+        x, y = 25.4 + (i % 20) * 38.1, 25.4 + (i // 20) * 30.48
+        r, sw, u = f"R{i + 1}", f"SW{i + 1}", f"U{i // 6 + 1}"
+        b.resistor(r, "10k 1% 0603", at=(x, y))
+        b.power("+5V", at=b.pin_point(r, "1"))
+        b.part(sw, "Switch:SW_Push", pins=SWITCH_PINS, at=(x + 10.16, y + 10.16), value="SW_Push")
+        b.power("GND", at=b.pin_point(sw, "2"))
+        b.wire(b.pin_point(r, "2"), b.pin_point(sw, "1"))
+        unit = i % 6 + 1
+        b.part(u, "74xx:74HC14", pins=HEX_INVERTER_PINS, at=(x + 20.32, y), value="74HC14",
+               unit=unit)  # fmt: skip
+        b.wire(b.pin_point(r, "2"), b.pin_point(u, str(gates[unit - 1]), unit=unit))
+    path = folder / f"synthetic_{n}.kicad_sch"
+    b.write(path)
+    return path
+
+
+def measure(fn: Callable[[], Any], repeat: int) -> tuple[float, float]:
+    """(best wall time in s, peak traced heap in MB) of ``fn``."""
+    best = float("inf")
+    for _ in range(repeat):
+        t0 = time.perf_counter()
+        fn()
+        best = min(best, time.perf_counter() - t0)
+    tracemalloc.start()
+    fn()
+    _, peak = tracemalloc.get_traced_memory()
+    tracemalloc.stop()
+    return best, peak / 1e6
+
+
+def main(argv: list[str] | None = None) -> int:
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--sizes", type=int, nargs="*", default=[50, 200, 800])
+    ap.add_argument("--repeat", type=int, default=3)
+    args = ap.parse_args(argv)
+    rows: list[tuple[str, int, float, float, float, float]] = []
+    with tempfile.TemporaryDirectory() as tmp:
+        cases: list[tuple[str, Path]] = [
+            (f"synthetic, {n} pulls", synthetic_board(n, Path(tmp))) for n in args.sizes
+        ]
+        if REALWORLD.is_dir():
+            for name, root in (
+                ("dispensy (3 files, 505 kB)", "dispensy/dispensy.kicad_sch"),
+                ("europi (375 kB, v10)", "europi/europi-surface-mount.kicad_sch"),
+            ):
+                cases.append((name, REALWORLD / root))
+        for name, path in cases:
+            size = sum(p.stat().st_size for p in path.parent.glob("*.kicad_sch"))
+            t_nets, m_nets = measure(lambda p=path: build_circuit(p), args.repeat)
+            t_rev, m_rev = measure(lambda p=path: review(p), args.repeat)
+            rows.append((name, size, t_nets, m_nets, t_rev, m_rev))
+    print("| case | schematic bytes | nets: time | nets: heap | review: time | review: heap |")
+    print("|---|---|---|---|---|---|")
+    for name, size, tn, mn, tr, mr in rows:
+        print(f"| {name} | {size:,} | {tn:.2f} s | {mn:.0f} MB | {tr:.2f} s | {mr:.0f} MB |")
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())
