@@ -259,13 +259,9 @@ def find_pulls(circuit: Circuit, classify: Classify, rail_of: RailOf) -> Topolog
     for name, (ups, downs) in sorted(scan.pulls().items()):
         net = nets_by_name[name]
         pulls = {ref for ref, _ in ups} | {ref for ref, _ in downs}
-        groups = scan.gather(net, pulls)
-        groups["inputs"].extend(scan.through_series(groups["series"], pulls))
-        reason = _set_aside_reason(net, groups, bool(ups and downs))
+        # The designer's word comes first: a 'skip' resistor is set aside for that reason
+        # alone, and neither counts toward a divider nor hides the other pulls.
         forced = {ref: (scan.part(ref).field("pullproof.role") or "").lower() for ref in pulls}
-        if reason and not any(v == "pull" for v in forced.values()):
-            aside.extend(SetAside(ref, name, reason) for ref in sorted(pulls))
-            continue
         skipped = {ref for ref, v in forced.items() if v == "skip"}
         aside.extend(
             SetAside(ref, name, "marked not a pull by its 'pullproof.role' field")
@@ -274,6 +270,12 @@ def find_pulls(circuit: Circuit, classify: Classify, rail_of: RailOf) -> Topolog
         ups_kept = tuple(u for u in ups if u[0] not in skipped)
         downs_kept = tuple(d for d in downs if d[0] not in skipped)
         if not ups_kept and not downs_kept:
+            continue
+        groups = scan.gather(net, pulls)
+        groups["inputs"].extend(scan.through_series(groups["series"], pulls))
+        reason = _set_aside_reason(net, groups, bool(ups_kept and downs_kept))
+        if reason and not any(forced[r] == "pull" for r in pulls - skipped):
+            aside.extend(SetAside(ref, name, reason) for ref in sorted(pulls - skipped))
             continue
         sheet = name.rsplit("/", 1)[0] + "/" if name.startswith("/") else "/"
         sites.append(
