@@ -311,7 +311,7 @@ def review_circuit(
         if not chosen(refs) or any(_has_internal_pull(circuit, p.ref) for p in inputs):
             continue
         sw = ", ".join(sorted({p.ref for p in switches}))
-        ins = ", ".join(f"{p.ref} pin {p.name}" for p in inputs)
+        ins = ", ".join(f"{p.ref} pin {p.name or p.pin}" for p in inputs)
         # A microcontroller pin may have its internal pull enabled by firmware, which the
         # schematic cannot show: flag it for confirmation rather than as a certain failure.
         mcu = all(infos[p.ref].kind is PartKind.MCU for p in inputs)

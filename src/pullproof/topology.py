@@ -37,6 +37,7 @@ _ANALOG_NAME = re.compile(r"(?i)(ADC|AIN|VSENSE|SENSE|FB|ADJ|VREF|COMP|ISET|PROG
 _ADC_PART = re.compile(r"(?i)^(ADC\w*|AIN\d*|AN\d+)$")
 _NAME_SPLIT = re.compile(r"[_/\s,|]+")
 _USB_CC_NAME = re.compile(r"(?i)^(CC\d?|VCONN)$")
+_CONTROL_NAME = re.compile(r"(?i)^(G|B|GATE|BASE)\d*$")  # transistor pins that do not drive
 _SHIELD_NAME = re.compile(r"(?i)(SHIELD|SHLD|^SH\d*$|CHASSIS|SH\d$)")
 
 Classify = Callable[[Part], str]
@@ -285,7 +286,11 @@ def find_pulls(circuit: Circuit, classify: Classify, rail_of: RailOf) -> Topolog
                 downs=downs_kept,
                 inputs=tuple(groups["inputs"]),
                 switches=tuple(groups["switches"]),
-                drivers=tuple(groups["drivers"] + groups["transistors"]),
+                # a gate or base on the net is a load, not a driver: only C/D/E/S pins drive
+                drivers=tuple(
+                    groups["drivers"]
+                    + [t for t in groups["transistors"] if not _CONTROL_NAME.match(t.name)]
+                ),
                 capacitors=tuple(groups["capacitors"]),
                 connectors=tuple(groups["connectors"]),
                 sheet=sheet,
