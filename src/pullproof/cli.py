@@ -89,6 +89,22 @@ def _cmd_note(args: argparse.Namespace) -> int:
     return 0
 
 
+def _cmd_demo(args: argparse.Namespace) -> int:
+    from collections import Counter
+
+    from .demo import write_demo
+
+    out = write_demo(args.dir, force=args.force)
+    print(f"wrote the demo project to {out.root.parent}:")
+    for path in out.files:
+        print(f"  {path}")
+    tally = Counter(r.verdict for r in out.result.networks)
+    counts = ", ".join(f"{v.value} {tally[v]}" for v in sorted(tally, key=lambda v: v.rank))
+    print(f"wrote the design note {out.note} ({len(out.result.networks)} networks: {counts})")
+    print(f"open the note in a browser; review the demo again with: pullproof review {out.root}")
+    return 0
+
+
 def _selection_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("root", help="root schematic file (.kicad_sch)")
     p.add_argument(
@@ -143,6 +159,14 @@ def _build_parser() -> argparse.ArgumentParser:
     p.add_argument("--title", help="title of the note")
     p.add_argument("--author", help="author named in the note")
     p.set_defaults(handler=_cmd_note)
+
+    p = sub.add_parser("demo", help="write the demo project and its design note into a folder")
+    p.add_argument(
+        "dir", nargs="?", default="pullproof-demo", metavar="DIR",
+        help="folder to write into (default: ./pullproof-demo; created when missing)",
+    )  # fmt: skip
+    p.add_argument("--force", action="store_true", help="overwrite demo files from an earlier run")
+    p.set_defaults(handler=_cmd_demo)
 
     return parser
 
