@@ -76,6 +76,11 @@ class Resolver:
             spec = self.rules.rail(name)
             if spec is not None:
                 return spec
+        if net.power:
+            # A power symbol names a supply even when its name states no voltage (VLOGIC):
+            # a rail of unknown voltage, which the rules file can describe.
+            name = net.name.rsplit("/", 1)[-1]
+            return RailSpec(name, None, None, None)
         return None
 
     def rail_key(self, net: Net) -> tuple[str, bool] | None:
