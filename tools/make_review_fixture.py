@@ -29,6 +29,7 @@ sys.path.insert(0, str(REPO / "tests"))
 
 import builder  # noqa: E402  (tests/builder.py, found through the path set above)
 from builder import HEX_INVERTER_PINS, SWITCH_PINS, Pin, SchematicBuilder  # noqa: E402
+from placer import LabelPlacer  # noqa: E402
 
 OUT = REPO / "fixtures" / "review"
 ROOT_FILE = "interlock_panel.kicad_sch"
@@ -65,36 +66,19 @@ def _seeded_uuids(seed: int) -> types.SimpleNamespace:
     return types.SimpleNamespace(uuid4=lambda: uuid.UUID(int=rng.getrandbits(128), version=4))
 
 
-class Panel:
-    """Places parts on a grid and joins pins by label or power symbol."""
+class Panel(LabelPlacer):
+    """The interlock panel, placed on a grid with labels on pin ends."""
 
     def __init__(self) -> None:
-        self.b = SchematicBuilder()
-        self.slot = 0
-
-    def at(self) -> tuple[float, float]:
-        self.slot += 1
-        return (25.4 + 38.1 * (self.slot % 8), 25.4 + 38.1 * (self.slot // 8))
-
-    def join(self, ref: str, pin: str, net: str, unit: int | None = None) -> None:
-        point = self.b.pin_point(ref, pin, unit)
-        if net in RAILS:
-            self.b.power(net, at=point)
-        else:
-            self.b.label(net, at=point)
+        super().__init__(RAILS)
 
     def r(self, ref: str, value: str, a: str, b: str, **fields: str) -> None:
-        """A resistor with pin 1 on ``a`` and pin 2 on ``b``."""
-        self.b.resistor(ref, value, at=self.at(), fields=fields or None)
-        self.join(ref, "1", a)
-        self.join(ref, "2", b)
+        self.resistor(ref, value, a, b, **fields)
 
     def two(
         self, ref: str, lib: str, pins: tuple[Pin, ...], value: str, a: str, b: str, **fields: str
     ) -> None:
-        self.b.part(ref, lib, pins=pins, at=self.at(), value=value, fields=fields or None)
-        self.join(ref, pins[0].number, a)
-        self.join(ref, pins[1].number, b)
+        self.place(ref, lib, pins, value, {pins[0].number: a, pins[1].number: b}, **fields)
 
     def hex_part(self, ref: str, lib: str, value: str, supply: str, inputs: dict[int, str]) -> None:
         """A hex inverter: gate inputs (unit → net), outputs left open, supply unit 7."""
@@ -109,10 +93,8 @@ class Panel:
     def chip(self, ref: str, lib: str, pins: tuple[Pin, ...], value: str, nets: dict[str, str],
              **fields: str) -> None:  # fmt: skip
         """A one-unit chip; ``nets`` maps pin names to nets."""
-        self.b.part(ref, lib, pins=pins, at=self.at(), value=value, fields=fields or None)
-        for pin in pins:
-            if pin.name in nets:
-                self.join(ref, pin.number, nets[pin.name])
+        by_number = {pin.number: nets[pin.name] for pin in pins if pin.name in nets}
+        self.place(ref, lib, pins, value, by_number, **fields)
 
 
 def build() -> SchematicBuilder:
