@@ -255,7 +255,11 @@ def review(
     circuit = build_circuit(root_path)
     rules_obj = load_rules(root_path, Path(rules) if rules is not None else None)
     library = _library(root_path, [Path(p) for p in parts])
-    return review_circuit(circuit, rules_obj, library, select or Selection())
+    result = review_circuit(circuit, rules_obj, library, select or Selection())
+    if rules_obj.file:  # Rules keeps only the file name; the note reads and digests the file
+        used = Path(rules) if rules is not None else root_path.parent / RULES_FILE
+        result = replace(result, rules_file=str(used))
+    return result
 
 
 def review_circuit(
