@@ -258,7 +258,7 @@ def review(
     result = review_circuit(circuit, rules_obj, library, select or Selection())
     if rules_obj.file:  # Rules keeps only the file name; the note reads and digests the file
         used = Path(rules) if rules is not None else root_path.parent / RULES_FILE
-        result = replace(result, rules_file=str(used))
+        result = replace(result, rules_file=os.path.abspath(used))
     return result
 
 
