@@ -76,6 +76,9 @@ def test_rails_table_and_net_overrides(tmp_path: Path) -> None:
 def test_mains_patterns(tmp_path: Path) -> None:
     rules = load_rules(tmp_path / "x.kicad_sch")
     assert rules.is_mains("/MAINS_L") and not rules.is_mains("/KEY_UP")
+    # A logic net that reports on mains is not itself a mains conductor.
+    assert rules.is_mains("/PUMP_AC_L") and rules.is_mains("AC_N")
+    assert not rules.is_mains("/MAINS_OK") and not rules.is_mains("/LINE_IN")
 
 
 @pytest.mark.parametrize(

@@ -63,7 +63,10 @@ KEYS: Mapping[str, Key] = MappingProxyType(
         "edge_time": Key("time", None, "the family transition limit applies when unset"),
         "mains_voltage": Key("voltage", "230VAC", "the most common mains supply; set yours"),
         "mains_patterns": Key(
-            "patterns", "*MAINS*,*230V*,*120V*,*LINE*,AC_L,AC_N", "names designers give mains"
+            "patterns",
+            "MAINS,MAINS_L*,MAINS_N*,*_MAINS_L,*_MAINS_N,AC_L*,AC_N*,*_AC_L,*_AC_N,LINE_L,LINE_N,"
+            "*230VAC*,*120VAC*",
+            "names designers give mains conductors (not logic nets such as MAINS_OK)",
         ),
         "ground": Key("patterns", "", "extra ground net names beyond the built-in ones"),
         "resistor.tolerance": Key("percent", "5%", "E24 customary tolerance (IEC 60063)"),
