@@ -1,6 +1,6 @@
 """Place parts on a grid and join their pins by label or power symbol, for schematic fixtures.
 
-Used by tests and by tools/make_review_fixture.py: every net is drawn as labels on pin ends
+Used by tests and by fixtures/make_review_fixture.py: every net is drawn as labels on pin ends
 (no wires), which the schematic format allows.
 """
 

@@ -1,6 +1,6 @@
 """The shipped demo: `pullproof demo DIR` writes the project and its note; verdicts pinned.
 
-The demo is a greenhouse irrigation controller (see tools/make_demo.py). Each expected
+The demo is a greenhouse irrigation controller (see fixtures/make_demo.py). Each expected
 verdict below says why a designer expects it and where its numbers come from.
 """
 

@@ -94,7 +94,9 @@ def test_fail_on_check() -> None:
     lv = levels(3.3, 2.0, 0.8, 1e-6, 1e-6, v_in_max=3.6)
     r = evaluate(network(inp(lv, same_supply_as_pull=False), pull_rail=rail("+5V", 5.0)))
     assert r.verdict is Verdict.FAIL
-    assert r.reason == "Input tolerates the pull rail fails: 5 V ≤ 3.6 V (input-tolerance)."
+    assert r.reason == (
+        "Input tolerates the pull rail is not met: it needs 5 V ≤ 3.6 V (input-tolerance)."
+    )
 
 
 def test_incomplete() -> None:

@@ -1,6 +1,6 @@
 """End-to-end review of the workshop interlock panel fixture: verdicts, bounds and JSON keys.
 
-The fixture (fixtures/review/, written by tools/make_review_fixture.py) has one net per
+The fixture (fixtures/review/, written by fixtures/make_review_fixture.py) has one net per
 situation. Number sources, carried over from REFERENCES.md with their status:
 JEDEC JESD7A 74HC levels (from memory); 74LS IIL = 0.4 mA, IIH = 20 µA, VIL = 0.8 V,
 VIH = 2.0 V (handbook tables, confirmed); UM10204 §7.1 I2C equations (confirmed);

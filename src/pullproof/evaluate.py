@@ -162,7 +162,7 @@ def _judge(
     bad_checks = [c for c in checks if c.hard and c.ok is False]
     if bad_checks:
         c = bad_checks[0]
-        return Verdict.FAIL, f"{c.title} fails: {c.substituted} ({c.constraint})."
+        return Verdict.FAIL, f"{c.title} is not met: it needs {c.substituted} ({c.constraint})."
     if missing:
         m = missing[0]
         more = f" (and {len(missing) - 1} more)" if len(missing) > 1 else ""
