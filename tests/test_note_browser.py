@@ -93,3 +93,18 @@ def test_screenshot_is_written(tmp_path: Path) -> None:
     # PNG IHDR (ISO/IEC 15948): width and height are the big-endian words at bytes 16-24.
     assert int.from_bytes(data[16:20], "big") == 1200
     assert int.from_bytes(data[20:24], "big") == 1600
+
+
+def test_demo_note_prints_one_page_or_more_per_network(tmp_path: Path) -> None:
+    from pullproof.demo import write_demo
+
+    demo = write_demo(tmp_path / "demo")
+    networks = len(demo.result.networks)
+    pages = pdf_pages(tmp_path, demo.note)
+    # The summary comes first and every network section starts on a new page.
+    assert pages >= networks + 1
+    dom = chromium(tmp_path, "--dump-dom", demo.note.as_uri()).stdout.decode()
+    assert dom.count('class="chart" role="img"') == networks
+    png = tmp_path / "demo.png"
+    chromium(tmp_path, f"--screenshot={png}", "--window-size=1000,1400", demo.note.as_uri())
+    assert png.read_bytes().startswith(b"\x89PNG\r\n\x1a\n")

@@ -227,7 +227,7 @@ def _check_findings(result: NetworkResult) -> list[Finding]:
                     n.net,
                     (*n.resistor.refs, *(i.ref for i in n.inputs)),
                     f"{', '.join(n.resistor.refs)} pulls {n.net} to {n.rail.name}, above what an "
-                    f"input on it tolerates ({c.substituted})",
+                    f"input on it tolerates (needs {c.substituted})",
                 )
             )
     return out
