@@ -305,6 +305,9 @@ class Resolver:
         found = set(first)
         for name in first:
             net = self.nets[name]
+            spec = self.rail_of(net)
+            if spec is not None and not self.rules.is_mains(name):
+                continue  # a supply or ground reaches everything; mains is never beyond it
             for m in net.members:
                 other = self.circuit.part(m.ref)
                 if other is None or other.ref == part.ref or len(other.pins) != 2:

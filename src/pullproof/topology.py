@@ -121,6 +121,7 @@ class _Scanner:
         self.classify = classify
         self.rail_of = rail_of
         self.kinds = {p.ref: classify(p) for p in circuit.parts}
+        self.nets = {n.name: n for n in circuit.nets}
 
     def kind(self, ref: str) -> str:
         return self.kinds.get(ref, "other")
@@ -195,7 +196,7 @@ class _Scanner:
         """Logic inputs one series resistor away (e.g. an RC filter in front of a Schmitt input)."""
         found: list[PinOnNet] = []
         for s in series:
-            far = next((n for n in self.circuit.nets if n.name == s.far_net), None)
+            far = self.nets.get(s.far_net)
             if far is None or self.rail_of(far) is not None:
                 continue
             groups = self.gather(far, exclude | {s.ref})
@@ -254,11 +255,10 @@ def find_pulls(circuit: Circuit, classify: Classify, rail_of: RailOf) -> Topolog
     """Find every pulled signal net, set aside rail-tied resistors that are not logic pulls,
     and list switch-driven inputs that have no pull at all."""
     scan = _Scanner(circuit, classify, rail_of)
-    nets_by_name = {n.name: n for n in circuit.nets}
     sites: list[PullSite] = []
     aside: list[SetAside] = []
     for name, (ups, downs) in sorted(scan.pulls().items()):
-        net = nets_by_name[name]
+        net = scan.nets[name]
         pulls = {ref for ref, _ in ups} | {ref for ref, _ in downs}
         # The designer's word comes first: a 'skip' resistor is set aside for that reason
         # alone, and neither counts toward a divider nor hides the other pulls.
