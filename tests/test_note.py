@@ -225,8 +225,12 @@ def test_template_typo_raises(tmp_path: Path) -> None:
 
 
 def test_templates_ship_where_the_wheel_puts_them() -> None:
-    # pyproject force-includes templates/ as pullproof/templates; a source checkout falls back.
-    assert note_mod._template_dir() == REPO / "templates"
+    # pyproject force-includes templates/ as pullproof/templates (an installed wheel);
+    # an editable install from a source checkout falls back to the top-level folder.
+    from importlib import resources
+
+    installed = resources.files("pullproof").joinpath("templates", note_mod.TEMPLATE).is_file()
+    assert installed or note_mod._template_dir() == REPO / "templates"
     assert (REPO / "templates" / note_mod.TEMPLATE).is_file()
     assert '"templates" = "pullproof/templates"' in (REPO / "pyproject.toml").read_text()
 
