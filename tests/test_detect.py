@@ -101,3 +101,38 @@ def test_power_symbol_without_voltage_is_an_unknown_rail(tmp_path: Path) -> None
     got = resolver.resolve(site, Direction.UP, site.ups)
     assert isinstance(got, UnknownRail)
     assert (got.rail, got.refs) == ("VLOGIC", ("R1",))
+
+
+@pytest.mark.parametrize(
+    ("text", "expected"),
+    [
+        ("up 30k..50k", (30e3, 50e3, "up")),
+        ("30k..50k", (30e3, 50e3, "up")),  # most microcontroller pulls are pull-ups
+        ("down 47k", (47e3, 47e3, "down")),
+        ("DOWN 4k7 .. 10k", (4.7e3, 10e3, "down")),
+    ],
+)
+def test_enabled_internal_pull_field(text: str, expected: tuple[float, float, str]) -> None:
+    from pullproof.circuit import Part
+    from pullproof.detect import enabled_internal_pull
+
+    part = Part("U1", "MCU", "x:y", "/", {"pullproof.internal_pull": text}, ())
+    found = enabled_internal_pull(part)
+    assert found is not None
+    (lo, hi), way = found
+    assert (lo.magnitude("ohm"), hi.magnitude("ohm"), way.value) == pytest.approx(expected)
+    assert lo.source.where == "field 'pullproof.internal_pull' on U1"
+
+
+def test_enabled_internal_pull_field_error() -> None:
+    from pullproof.circuit import Part
+    from pullproof.detect import enabled_internal_pull
+    from pullproof.errors import ValueParseError
+
+    part = Part("U1", "MCU", "x:y", "/", {"pullproof.internal_pull": "sideways 4k7"}, ())
+    with pytest.raises(ValueParseError) as info:
+        enabled_internal_pull(part)
+    assert str(info.value) == (
+        "field 'pullproof.internal_pull' of U1: cannot read 'sideways 4k7'; "
+        "expected [up|down] MIN..MAX, e.g. up 30k..50k"
+    )

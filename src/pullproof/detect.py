@@ -9,10 +9,12 @@ rules file or the rail's name, and the project rules for the net.
 from __future__ import annotations
 
 import fnmatch
+import re
 from collections.abc import Mapping
 from dataclasses import dataclass
 
 from .circuit import Circuit, Net, Part
+from .errors import ValueParseError
 from .families.match import PartInfo, PartKind
 from .network import (
     CapacitorOnNet,
@@ -30,9 +32,9 @@ from .network import (
 from .provenance import Origin, Provenance, Sourced, Status
 from .rules import RailSpec, Rules
 from .topology import PinOnNet, PullSite
-from .units import Q_
+from .units import Q_, parse_resistance
 
-__all__ = ["Resolver", "UnknownRail"]
+__all__ = ["Resolver", "UnknownRail", "enabled_internal_pull"]
 
 # A small-signal transistor or MOSFET sinks far more than any pull draws; used only when the
 # part says nothing (common practice: small-signal devices are rated for 100 mA and more).
@@ -56,6 +58,35 @@ def _default(value: object, name: str, reason: str, status: Status = Status.DEFA
 
 def _derived(value: object, where: str) -> Sourced:
     return Sourced(value, Provenance(Origin.DERIVED, where, Status.USER))
+
+
+_PULL_RANGE = re.compile(
+    r"^\s*(?:(?P<way>up|down)\s+)?(?P<lo>[^.\s]+)(?:\s*\.\.\s*(?P<hi>\S+))?\s*$", re.I
+)
+
+
+def enabled_internal_pull(part: Part) -> tuple[tuple[Sourced, Sourced], Direction] | None:
+    """The internal pull the designer says firmware enables: field 'pullproof.internal_pull',
+    written ``[up|down] MIN..MAX`` (or one value); a part library's range is only a capability.
+
+    Raises:
+        ValueParseError: the field cannot be read.
+    """
+    text = part.field("pullproof.internal_pull")
+    if text is None:
+        return None
+    m = _PULL_RANGE.match(text)
+    if m is None:
+        raise ValueParseError(
+            text, expected="[up|down] MIN..MAX, e.g. up 30k..50k",
+            field="pullproof.internal_pull", part=part.ref,
+        )  # fmt: skip
+    where = Provenance(Origin.FIELD, f"field 'pullproof.internal_pull' on {part.ref}", Status.USER)
+    lo = parse_resistance(m.group("lo"), field="pullproof.internal_pull", part=part.ref)
+    hi = parse_resistance(m.group("hi") or m.group("lo"), field="pullproof.internal_pull",
+                          part=part.ref)  # fmt: skip
+    way = Direction.DOWN if (m.group("way") or "up").lower() == "down" else Direction.UP
+    return (Sourced(lo, where), Sourced(hi, where)), way
 
 
 class Resolver:
@@ -177,6 +208,7 @@ class Resolver:
                 )
             return InputOnNet(pin.ref, pin.pin, info.family, (), series_ohms=series,
                               series_ref=pin.via, missing=tuple(missing))  # fmt: skip
+        pull = enabled_internal_pull(part)
         supply = self._supply_of(part)
         same = not rail.ground and (supply is None or supply.name == rail.name)
         if supply is None or supply.v_min is None or supply.v_max is None:
@@ -204,7 +236,8 @@ class Resolver:
             same_supply_as_pull=same,
             series_ohms=series,
             series_ref=pin.via,
-            internal_pull=model.internal_pull,
+            internal_pull=pull[0] if pull else None,
+            internal_pull_direction=pull[1] if pull else None,
             schmitt=model.schmitt,
             missing=tuple(missing),
         )

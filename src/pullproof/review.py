@@ -17,7 +17,7 @@ from dataclasses import dataclass, replace
 from pathlib import Path
 
 from .circuit import Circuit, Part
-from .detect import Resolver, UnknownRail
+from .detect import Resolver, UnknownRail, enabled_internal_pull
 from .errors import PullproofError
 from .evaluate import evaluate
 from .families.match import (
@@ -349,7 +349,7 @@ def review_circuit(
 def _has_internal_pull(circuit: Circuit, ref: str) -> bool:
     """An input whose part declares an enabled internal pull does not float."""
     part = circuit.part(ref)
-    return part is not None and part.field("pullproof.internal_pull") is not None
+    return part is not None and enabled_internal_pull(part) is not None
 
 
 def _kind_word(info: PartInfo) -> str:

@@ -85,7 +85,9 @@ FIELDS: Mapping[str, FieldDoc] = MappingProxyType(
         "pullproof.i_high": FieldDoc("logic input", "current into a pin held high", "1uA"),
         "pullproof.i_low": FieldDoc("logic input", "current out of a pin held low", "0.4mA"),
         "pullproof.v_in_max": FieldDoc("logic input", "highest voltage the pin tolerates", "5.5V"),
-        "pullproof.internal_pull": FieldDoc("MCU", "internal pull range min..max", "30k..50k"),
+        "pullproof.internal_pull": FieldDoc(
+            "MCU", "internal pull firmware enables: [up|down] min..max", "up 30k..50k"
+        ),
         "pullproof.contact_max": FieldDoc("switch, relay", "largest contact current", "50mA"),
         "pullproof.wetting": FieldDoc("switch, relay", "least contact (wetting) current", "1mA"),
         "pullproof.bounce": FieldDoc("switch", "contact bounce time", "5ms"),
