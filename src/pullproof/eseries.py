@@ -16,6 +16,8 @@ from decimal import Decimal
 from types import MappingProxyType
 from typing import Any
 
+from .units import format_si
+
 __all__ = [
     "REL_TOL",
     "SERIES",
@@ -176,18 +178,6 @@ def _needed_figures(x: float) -> int:
     return 3
 
 
-_SI_PREFIXES = ((1e9, "G"), (1e6, "M"), (1e3, "k"), (1.0, ""), (1e-3, "m"))
-
-
 def format_ohms(value: Any, figures: int = 3) -> str:
     """A readable resistance such as "4.7 kΩ", "470 Ω", "1.35 MΩ" (trailing zeros dropped)."""
-    x = _ohms(value)
-    if x == 0:
-        return "0 Ω"
-    scale, prefix = next(
-        ((s, p) for s, p in _SI_PREFIXES if abs(x) >= s * (1 - REL_TOL)), (1e-3, "m")
-    )
-    text = f"{x / scale:.{figures}g}"
-    if "e" in text:  # e.g. 1000 kΩ rounding up: fall back to plain digits
-        text = f"{x / scale:.0f}"
-    return f"{text} {prefix}Ω"
+    return format_si(_ohms(value), "Ω", sig=figures, minus="-")

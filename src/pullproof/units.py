@@ -31,6 +31,7 @@ from .errors import ValueParseError
 __all__ = [
     "Q_",
     "ResistorText",
+    "format_si",
     "parse_capacitance",
     "parse_current",
     "parse_percent",
@@ -418,3 +419,46 @@ def parse_temperature(text: str, *, field: str | None = None, part: str | None =
         raise _fail(text, _EXPECT_TEMP, field, part)
     value = _finite(_decimal(m.group("num"), 0), text, _EXPECT_TEMP, field, part)
     return Q_(-value if m.group("sign") == "-" else value, ureg.degC)
+
+
+# ---------------------------------------------------------------- formatting
+
+# SI prefixes by power of a thousand; "µ" is U+00B5 as typographers and IEC 60027 print it.
+_SI_PREFIXES = {
+    -15: "f",
+    -12: "p",
+    -9: "n",
+    -6: "µ",
+    -3: "m",
+    0: "",
+    3: "k",
+    6: "M",
+    9: "G",
+    12: "T",
+}
+
+
+def format_si(value: float, unit: str, *, sig: int = 3, sep: str = " ", minus: str = "−") -> str:
+    """``value`` (in the base ``unit``) with an SI prefix and ``sig`` significant digits,
+    trailing zeros dropped: (4700, "Ω") → "4.7 kΩ"; NaN → "unknown"; ±inf → "∞"/"−∞".
+
+    The one formatter behind every number pullproof prints (reasons, substituted
+    formulas, tables, the note); ``sep`` is the space between number and unit.
+    """
+    if math.isnan(value):
+        return "unknown"
+    if math.isinf(value):
+        return "∞" if value > 0 else f"{minus}∞"
+    if value == 0:
+        return f"0{sep}{unit}"
+    power = int(math.floor(math.log10(abs(value)) / 3) * 3)
+    power = max(min(power, 12), -15)
+    scaled = value / 10.0**power
+    # Rounding can carry into the next prefix (999.97 → "1e+03"): step up instead.
+    if abs(float(f"{scaled:.{sig}g}")) >= 1000 and power < 12:
+        power += 3
+        scaled = value / 10.0**power
+    text = f"{scaled:.{sig}g}"
+    if "e" in text:  # only at the ends of the prefix range
+        text = f"{scaled:.0f}"
+    return f"{text.replace('-', minus)}{sep}{_SI_PREFIXES[power]}{unit}"

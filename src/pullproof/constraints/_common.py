@@ -11,7 +11,7 @@ from ..network import Direction, InputLevels, InputOnNet, Missing, PullNetwork, 
 from ..network import NetworkRules as Rules
 from ..provenance import Origin, Provenance, Sourced, Status
 from ..results import Bound, BoundKind, Check, Term
-from ..units import Q_
+from ..units import Q_, format_si
 
 __all__ = [
     "LEVEL_HINT",
@@ -63,31 +63,10 @@ class Builtin:
 
 # ---------------------------------------------------------------- formatting
 
-_PREFIXES = (
-    (1e9, "G"),
-    (1e6, "M"),
-    (1e3, "k"),
-    (1.0, ""),
-    (1e-3, "m"),
-    (1e-6, "µ"),
-    (1e-9, "n"),
-    (1e-12, "p"),
-    (1e-15, "f"),
-)
-
 
 def eng(x: float, symbol: str) -> str:
     """Format ``x`` (in base units) with an SI prefix and four significant digits."""
-    if x == 0 or not math.isfinite(x):
-        return f"{x:g} {symbol}"
-    a = abs(x)
-    scale, prefix = _PREFIXES[-1]
-    for s, p in _PREFIXES:
-        # 0.99995 keeps 999.99 µ from printing as "1000 µ"
-        if a >= s * 0.99995:
-            scale, prefix = s, p
-            break
-    return f"{x / scale:.4g} {prefix}{symbol}"
+    return format_si(x, symbol, sig=4, minus="-")
 
 
 _BASE = {"V": "V", "A": "A", "ohm": "Ω", "F": "F", "s": "s", "W": "W"}

@@ -7,11 +7,10 @@ A non-breaking space joins number and unit so a printed table never splits them.
 
 from __future__ import annotations
 
-import math
 from typing import Any
 
 from ..provenance import Sourced
-from ..units import ureg
+from ..units import format_si, ureg
 
 __all__ = [
     "NBSP",
@@ -25,9 +24,6 @@ __all__ = [
 ]
 
 NBSP = "\u00a0"
-
-# SI prefixes by power of a thousand; "µ" is U+00B5 as typographers and IEC 60027 print it.
-_PREFIXES = {-15: "f", -12: "p", -9: "n", -6: "µ", -3: "m", 0: "", 3: "k", 6: "M", 9: "G", 12: "T"}
 
 # Base units a quantity is converted to before it is given a prefix, with the symbol printed.
 _BASES: tuple[tuple[str, str], ...] = (
@@ -53,20 +49,7 @@ def _digits(value: float, sig: int = 3) -> str:
 
 def engineering(value: float, unit: str, sig: int = 3) -> str:
     """Format ``value`` (in the base ``unit``) with an SI prefix: (4700, "Ω") → "4.7 kΩ"."""
-    if math.isnan(value):
-        return "unknown"
-    if math.isinf(value):
-        return "∞" if value > 0 else "−∞"
-    if value == 0:
-        return f"0{NBSP}{unit}"
-    power = int(math.floor(math.log10(abs(value)) / 3) * 3)
-    power = max(min(power, 12), -15)
-    scaled = value / 10.0**power
-    # Rounding can carry into the next prefix (999.7 Ω → "1e+03 Ω"): step up instead.
-    if abs(float(f"{scaled:.{sig}g}")) >= 1000 and power < 12:
-        power += 3
-        scaled = value / 10.0**power
-    return f"{_digits(scaled, sig)}{NBSP}{_PREFIXES[power]}{unit}"
+    return format_si(value, unit, sig=sig, sep=NBSP)
 
 
 def format_ohms(ohms: float | None) -> str:
