@@ -105,6 +105,21 @@ def _cmd_demo(args: argparse.Namespace) -> int:
     return 0
 
 
+def _cmd_annotate(args: argparse.Namespace) -> int:
+    from .annotate import apply_annotation, format_plan, plan_annotation
+    from .review import Selection, parse_ref_list, parse_where
+
+    select = Selection(
+        refs=parse_ref_list(args.ref) if args.ref else None,
+        where=parse_where(args.where or ()),
+    )
+    plan = plan_annotation(args.root, rules=args.rules, parts=args.parts or (), select=select)
+    if args.write:
+        apply_annotation(plan)
+    print(format_plan(plan, written=args.write), end="")
+    return 0
+
+
 def _selection_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("root", help="root schematic file (.kicad_sch)")
     p.add_argument(
@@ -159,6 +174,15 @@ def _build_parser() -> argparse.ArgumentParser:
     p.add_argument("--title", help="title of the note")
     p.add_argument("--author", help="author named in the note")
     p.set_defaults(handler=_cmd_note)
+
+    p = sub.add_parser("annotate", help="write the review results into the schematic as fields")
+    _selection_options(p)
+    p.add_argument(
+        "--write",
+        action="store_true",
+        help="modify the schematic files (default: only list the fields that would change)",
+    )
+    p.set_defaults(handler=_cmd_annotate)
 
     p = sub.add_parser("demo", help="write the demo project and its design note into a folder")
     p.add_argument(

@@ -1,0 +1,535 @@
+"""Write review results back into the schematic as hidden ``pullproof.*`` fields.
+
+The original text is spliced, never re-serialised: for each placed resistor symbol
+only its own ``(property "pullproof.…" …)`` nodes are removed and inserted, in the
+indentation, newline style and field dialect of that file. Every other byte stays
+as it was. Before anything is written, each new text is parsed again and the
+circuit rebuilt from the new texts must have the same net partition; files are
+then replaced atomically (temporary file in the same folder + ``os.replace``),
+and a failure part-way restores the files already replaced.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import datetime as _dt
+import math
+import os
+import tempfile
+from collections.abc import Iterable, Sequence
+from dataclasses import dataclass, replace
+from pathlib import Path
+
+from . import __version__
+from .circuit import Circuit
+from .errors import PullproofError, SourceText
+from .eseries import format_rkm
+from .nets import (
+    _Builder,
+    build_circuit,
+    natural_key,
+)  # _Builder: rebuild from texts held in memory
+from .results import NetworkResult, ReviewResult
+from .review import Selection, review
+from .schematic.hierarchy import load_hierarchy
+from .schematic.reader import read_text
+from .sexpr import Node, parse
+
+__all__ = [
+    "FIELDS",
+    "AnnotateError",
+    "AnnotationPlan",
+    "FieldChange",
+    "FileEdit",
+    "apply_annotation",
+    "format_plan",
+    "plan_annotation",
+]
+
+PREFIX = "pullproof."
+# The fields annotate owns. Other pullproof.* fields (role, internal_pull, …) are the
+# designer's inputs and are never touched.
+FIELDS = (
+    "pullproof.verdict",
+    "pullproof.window",
+    "pullproof.recommended",
+    "pullproof.reason",
+    "pullproof.reviewed",
+)
+_REVIEWED = "pullproof.reviewed"
+
+# Format versions (file dates) where the field dialect changes, from real files:
+# up to v7 (20230121) `hide` is a bare word in effects; v8 (20231120) and v9 (20250114)
+# write `(hide yes)` inside effects, one list per line; v10 moves `(hide yes)` up into
+# the property itself.
+_V8 = 20231120
+_V9 = 20250114
+
+
+class AnnotateError(PullproofError, RuntimeError):
+    """The fields cannot be written safely; nothing was written."""
+
+
+@dataclass(frozen=True)
+class FieldChange:
+    """One field on one symbol: ``old`` None = added, ``new`` None = removed."""
+
+    refs: str  # "R3", or "R5/R105" for a symbol shared by two sheet instances
+    name: str
+    old: str | None
+    new: str | None
+
+    @property
+    def action(self) -> str:
+        if self.old is None:
+            return "add"
+        if self.new is None:
+            return "remove"
+        return "keep" if self.old == self.new else "change"
+
+
+@dataclass(frozen=True)
+class FileEdit:
+    """The planned new text of one schematic file."""
+
+    file: str  # as the review names it (relative to the root's folder)
+    path: str  # absolute path
+    old_text: str
+    new_text: str
+    changes: tuple[FieldChange, ...]
+    notes: tuple[str, ...] = ()
+
+    @property
+    def changed(self) -> bool:
+        return self.old_text != self.new_text
+
+
+@dataclass(frozen=True)
+class AnnotationPlan:
+    """Every file's planned text, checked: parsed again, nets unchanged."""
+
+    root: str
+    review: ReviewResult
+    edits: tuple[FileEdit, ...]
+
+
+@dataclass(frozen=True)
+class _Target:
+    """One placed symbol to annotate: the fields it should carry."""
+
+    file: str
+    span: tuple[int, int]
+    refs: str
+    fields: tuple[tuple[str, str], ...]
+    note: str = ""
+
+
+# -- field values ---------------------------------------------------------------------------
+
+
+def _round3(x: float, *, up: bool) -> float:
+    """Three significant figures, rounded toward the inside of the window."""
+    q = 10.0 ** (math.floor(math.log10(x)) - 2)
+    n = x / q
+    n = float(round(n)) if abs(n - round(n)) < 1e-9 * n else (math.ceil(n) if up else math.floor(n))
+    return n * q
+
+
+def window_text(window: tuple[float | None, float | None]) -> str:
+    """The window in the IEC 60062 code, rounded inward to 3 figures: "2K2..141K".
+
+    An open side reads "0" or "∞"; a crossed window "empty: 2K2 > 141K".
+    """
+    lo, hi = window
+    left = "0" if lo is None or lo <= 0 else format_rkm(_round3(lo, up=True))
+    right = "∞" if hi is None else format_rkm(_round3(hi, up=False)) if hi > 0 else "0"
+    if lo is not None and hi is not None and lo > hi:
+        return f"empty: {left} > {right}"
+    return f"{left}..{right}"
+
+
+def _fields(result: NetworkResult, stamp: str) -> tuple[tuple[str, str], ...]:
+    rec = result.recommendation
+    pick = "none"
+    if rec is not None and rec.pick is not None:
+        pick = f"{format_rkm(rec.pick)} ({rec.series})"
+    reason = " ".join(result.reason.split())
+    return (
+        ("pullproof.verdict", result.verdict.value),
+        ("pullproof.window", window_text(result.window)),
+        ("pullproof.recommended", pick),
+        ("pullproof.reason", reason),
+        (_REVIEWED, stamp),
+    )
+
+
+def _targets(
+    circuit: Circuit, result: ReviewResult, select: Selection, stamp: str
+) -> dict[tuple[str, tuple[int, int]], _Target]:
+    """Map each placed symbol to the fields it gets; a shared symbol takes the worst."""
+    judged: dict[tuple[str, tuple[int, int]], list[tuple[str, NetworkResult]]] = {}
+    for net in result.networks:
+        for ref in net.network.resistor.refs:
+            part = circuit.part(ref)
+            for pl in part.placements if part is not None else ():
+                judged.setdefault((pl.file, pl.span), []).append((ref, net))
+    out: dict[tuple[str, tuple[int, int]], _Target] = {}
+    for key, pairs in judged.items():
+        pairs.sort(key=lambda p: (-p[1].verdict.rank, p[0]))
+        refs = "/".join(sorted({r for r, _ in pairs}))
+        worst_ref, worst = pairs[0]
+        note = ""
+        verdicts = {v.verdict for _, v in pairs}
+        if len(verdicts) > 1:
+            listed = ", ".join(f"{r} {v.verdict.value}" for r, v in sorted(pairs))
+            note = (
+                f"{refs} share one symbol (sheet used twice) with different verdicts "
+                f"({listed}); writing the worse, from {worst_ref}"
+            )
+        out[key] = _Target(key[0], key[1], refs, _fields(worst, stamp), note)
+    # Stale results on resistors no longer judged are removed, so no old verdict lingers.
+    for part in circuit.parts:
+        if select.active and not select.wants(part):
+            continue
+        if not any(name in part.fields for name in FIELDS):
+            continue
+        for pl in part.placements:
+            out.setdefault((pl.file, pl.span), _Target(pl.file, pl.span, part.ref, ()))
+    return out
+
+
+# -- splicing -------------------------------------------------------------------------------
+
+
+def _quote(text: str) -> str:
+    return '"' + text.replace("\\", "\\\\").replace('"', '\\"').replace("\n", "\\n") + '"'
+
+
+def _version(root: Node) -> int:
+    v = root.first("version")
+    value = v.atom(0, 0) if v is not None else 0
+    return value if isinstance(value, int) else 0
+
+
+def _line_indent(text: str, pos: int) -> str:
+    start = text.rfind("\n", 0, pos) + 1
+    head = text[start:pos]
+    return head if not head.strip() else ""
+
+
+def _ws_start(text: str, pos: int) -> int:
+    """Where the whitespace run just before ``pos`` starts."""
+    while pos > 0 and text[pos - 1] in " \t\r\n":
+        pos -= 1
+    return pos
+
+
+class _Dialect:
+    """How one file writes a hidden property, read from its version and its own text."""
+
+    def __init__(self, text: str, version: int) -> None:
+        self.version = version
+        self.newline = "\r\n" if "\r\n" in text else "\n"
+
+    def render(self, name: str, value: str, at: str, pid: int | None, sep: str, unit: str) -> str:
+        """One property node; ``sep`` starts each line (newline + indent), or " " inline."""
+        head = f"(property {_quote(name)} {_quote(value)}"
+        ident = f" (id {pid})" if pid is not None else ""
+        at_node = f"(at {at} 0)"
+        v = self.version
+        if sep == " ":  # a symbol written on one line stays on one line
+            if v > _V9:
+                return f"{head}{ident} {at_node} (hide yes) (effects (font (size 1.27 1.27))))"
+            hide = "(hide yes)" if v >= _V8 else "hide"
+            return f"{head}{ident} {at_node} (effects (font (size 1.27 1.27)) {hide}))"
+        i1, i2, i3 = sep + unit, sep + unit * 2, sep + unit * 3
+        if v > _V9:
+            return (
+                f"{head}{ident}{i1}{at_node}{i1}(hide yes){i1}(effects{i2}(font"
+                f"{i3}(size 1.27 1.27){i2}){i1}){sep})"
+            )
+        if v >= _V8:
+            return (
+                f"{head}{ident}{i1}{at_node}{i1}(effects{i2}(font"
+                f"{i3}(size 1.27 1.27){i2}){i2}(hide yes){i1}){sep})"
+            )
+        return f"{head}{ident} {at_node}{i1}(effects (font (size 1.27 1.27)) hide){sep})"
+
+
+def _own_fields(sym: Node) -> dict[str, tuple[str, Node]]:
+    out: dict[str, tuple[str, Node]] = {}
+    for p in sym.nodes("property"):
+        key, value = p.atom(0), p.atom(1)
+        if isinstance(key, str) and key in FIELDS:
+            out[key] = (value if isinstance(value, str) else "", p)
+    return out
+
+
+def _splice_symbol(
+    text: str, sym: Node, target: _Target, dialect: _Dialect
+) -> tuple[list[tuple[int, int, str]], list[FieldChange]]:
+    """The (start, end, replacement) cuts for one symbol, and its field changes."""
+    old = _own_fields(sym)
+    wanted = dict(target.fields)
+    if _REVIEWED in wanted and _REVIEWED in old:
+        # The stamp says which run produced these values: keep it while they are unchanged.
+        same = all(old.get(k, ("",))[0] == v for k, v in wanted.items() if k != _REVIEWED)
+        if same:
+            wanted[_REVIEWED] = old[_REVIEWED][0]
+    changes = [FieldChange(target.refs, n, old[n][0] if n in old else None, wanted[n])
+               for n in FIELDS if n in wanted]  # fmt: skip
+    changes += [FieldChange(target.refs, n, old[n][0], None) for n in FIELDS
+                if n in old and n not in wanted]  # fmt: skip
+    if all(c.action == "keep" for c in changes):
+        return [], changes
+    cuts = [(_ws_start(text, node.span[0]), node.span[1], "") for _, node in old.values()]
+    cuts.sort()
+    props = [p for p in sym.nodes("property") if p.atom(0) not in FIELDS]
+    anchor = props[-1] if props else (sym.first("at") or sym)
+    insert_at = cuts[0][0] if cuts else anchor.span[1]
+    one_line = "\n" not in text[sym.span[0] : sym.span[1]]
+    if one_line:
+        sep, unit = " ", ""
+    else:
+        indent = _line_indent(text, anchor.span[0]) if props else ""
+        outer = _line_indent(text, sym.span[0])
+        if not indent:
+            indent = outer + ("\t" if "\t" in outer else "  ")
+        unit = "\t" if "\t" in indent else indent[len(outer) :] or "  "
+        sep = dialect.newline + indent
+    ids = [p.first("id") for p in props]
+    numbers = [int(n.atom(0)) for n in ids if n is not None and isinstance(n.atom(0), int)]
+    next_id: int | None = max(numbers) + 1 if numbers else None
+    at = sym.first("at")
+    # the symbol's own position, copied as written (no float round trip)
+    where = " ".join(text[at.span[0] + 1 : at.span[1] - 1].split()[1:3]) if at else "0 0"
+    block = []
+    for name in FIELDS:
+        if name in wanted:
+            block.append(sep + dialect.render(name, wanted[name], where, next_id, sep, unit))
+            next_id = next_id + 1 if next_id is not None else None
+    if cuts:
+        first = cuts[0]
+        cuts[0] = (first[0], first[1], "".join(block))
+    else:
+        cuts.append((insert_at, insert_at, "".join(block)))
+    return cuts, changes
+
+
+def _edit_file(file: str, path: str, targets: Sequence[_Target], display: str) -> FileEdit:
+    try:
+        text = Path(path).read_bytes().decode("utf-8")
+    except (OSError, UnicodeDecodeError) as exc:
+        raise AnnotateError(
+            f"{display}: cannot read the file again: {exc}; nothing written"
+        ) from None
+    # the reader turns a byte-order mark into a space of the same length; parse the same way
+    root = parse(" " + text[1:] if text.startswith("\ufeff") else text, display)
+    by_span = {n.span: n for n in root.nodes("symbol")}
+    dialect = _Dialect(text, _version(root))
+    cuts: list[tuple[int, int, str]] = []
+    changes: list[FieldChange] = []
+    for t in sorted(targets, key=lambda t: t.span):
+        sym = by_span.get(t.span)
+        if sym is None:
+            loc = SourceText(display, text).locate(t.span[0])
+            raise AnnotateError(f"the symbol of {t.refs} is not where it was read; nothing written",
+                                loc)  # fmt: skip
+        c, ch = _splice_symbol(text, sym, t, dialect)
+        cuts.extend(c)
+        changes.extend(ch)
+    new = text
+    for start, end, repl in sorted(cuts, reverse=True):
+        new = new[:start] + repl + new[end:]
+    notes = tuple(t.note for t in targets if t.note)
+    return FileEdit(file, path, text, new, tuple(changes), notes)
+
+
+# -- checking -------------------------------------------------------------------------------
+
+
+def _partition(circuit: Circuit) -> set[frozenset[tuple[str, str]]]:
+    return {frozenset((m.ref, m.pin) for m in n.members) for n in circuit.nets}
+
+
+def _check(root: str, circuit: Circuit, edits: Sequence[FileEdit]) -> None:
+    """Parse every new text and rebuild the circuit from them: the nets must not change."""
+    hier = load_hierarchy(root)
+    new_by_path = {e.path: e for e in edits}
+    models = dict(hier.models)
+    texts = dict(hier.texts)
+    for key, path in hier.absolute.items():
+        edit = new_by_path.get(path)
+        if edit is None or not edit.changed:
+            continue
+        name = texts[key].name
+        try:
+            model = read_text(edit.new_text, name)
+        except PullproofError as exc:
+            raise AnnotateError(f"{name}: the annotated text does not read back ({exc}); "
+                                "nothing written") from None  # fmt: skip
+        if [(b.file, b.uuid) for b in model.sheets] != [
+            (b.file, b.uuid) for b in hier.models[key].sheets
+        ]:
+            raise AnnotateError(f"{name}: the annotated text changes the sheets; nothing written")
+        models[key] = model
+        texts[key] = SourceText(name, edit.new_text)
+    after = _Builder(replace(hier, models=models, texts=texts)).circuit(root)
+    if _partition(after) != _partition(circuit):
+        raise AnnotateError(f"{root}: the annotated text would change the nets; nothing written")
+
+
+# -- the plan -------------------------------------------------------------------------------
+
+
+def plan_annotation(
+    root: str | os.PathLike[str],
+    *,
+    rules: str | os.PathLike[str] | None = None,
+    parts: Sequence[str | os.PathLike[str]] = (),
+    select: Selection | None = None,
+    today: _dt.date | None = None,
+) -> AnnotationPlan:
+    """Review ``root`` and work out every file's annotated text; nothing is written.
+
+    Args:
+        root: the root schematic file.
+        rules, parts, select: as for :func:`pullproof.review.review`.
+        today: the date in ``pullproof.reviewed`` (default: today).
+
+    Raises:
+        PullproofError: the review fails (malformed input), or the annotated text
+            would not read back with the same nets (:class:`AnnotateError`).
+    """
+    select = select or Selection()
+    result = review(root, rules=rules, parts=parts, select=select)
+    circuit = build_circuit(root)
+    stamp = f"pullproof {__version__}, {(today or _dt.date.today()).isoformat()}"
+    targets = _targets(circuit, result, select, stamp)
+    by_file: dict[str, list[_Target]] = {}
+    for t in targets.values():
+        by_file.setdefault(t.file, []).append(t)
+    sheet_names = {s.file: s.file for s in circuit.sheets}
+    edits = []
+    for file in sorted(by_file):
+        path = circuit.files[file]
+        display = os.path.join(os.path.dirname(os.fspath(root)), sheet_names.get(file, file))
+        edits.append(_edit_file(file, path, by_file[file], display))
+    _check(os.fspath(root), circuit, edits)
+    return AnnotationPlan(os.fspath(root), result, tuple(edits))
+
+
+def apply_annotation(plan: AnnotationPlan) -> tuple[str, ...]:
+    """Write every changed file of ``plan`` atomically; return the files written.
+
+    All new texts go to temporary files in each file's own folder first; only when
+    all are written are the originals replaced. If a replacement fails, the files
+    already replaced get their original text back.
+
+    Raises:
+        AnnotateError: a file is read-only, changed on disk since it was read, or
+            cannot be written; the originals are left as they were.
+    """
+    edits = [e for e in plan.edits if e.changed]
+    for e in edits:
+        _still_same(e)
+        if not os.access(e.path, os.W_OK):
+            raise AnnotateError(f"{e.path}: the file is read-only; nothing written")
+    temps: list[tuple[FileEdit, str]] = []
+    try:
+        for e in edits:
+            temps.append((e, _write_temp(e.path, e.new_text)))
+    except OSError as exc:
+        _discard(t for _, t in temps)
+        raise AnnotateError(f"{exc.filename or 'a temporary file'}: cannot write: "
+                            f"{exc.strerror or exc}; nothing written") from None  # fmt: skip
+    done: list[FileEdit] = []
+    try:
+        for e, tmp in temps:
+            os.replace(tmp, e.path)
+            done.append(e)
+    except OSError as exc:
+        _discard(t for e, t in temps if e not in done)
+        _restore(done)
+        raise AnnotateError(f"{e.path}: cannot replace the file: {exc.strerror or exc}; "
+                            "nothing written") from None  # fmt: skip
+    return tuple(e.file for e in edits)
+
+
+def _still_same(e: FileEdit) -> None:
+    try:
+        now = Path(e.path).read_bytes().decode("utf-8")
+    except (OSError, UnicodeDecodeError):
+        now = None
+    if now != e.old_text:
+        raise AnnotateError(f"{e.path}: the file changed since it was read; nothing written")
+
+
+def _write_temp(path: str, text: str) -> str:
+    folder, name = os.path.split(path)
+    fd, tmp = tempfile.mkstemp(prefix=f".{name}.", suffix=".tmp", dir=folder)
+    try:
+        with os.fdopen(fd, "wb") as fh:
+            fh.write(text.encode("utf-8"))
+            fh.flush()
+            os.fsync(fh.fileno())
+        os.chmod(tmp, os.stat(path).st_mode & 0o7777)
+    except OSError:
+        _discard([tmp])
+        raise
+    return tmp
+
+
+def _discard(paths: Iterable[str]) -> None:
+    for p in paths:
+        with contextlib.suppress(OSError):  # already gone; nothing of the user's is at stake
+            os.unlink(p)
+
+
+def _restore(done: Sequence[FileEdit]) -> None:
+    """Put the original text back into files already replaced (best effort, atomically)."""
+    for e in done:
+        with contextlib.suppress(OSError):  # the caller's error names the failure
+            os.replace(_write_temp(e.path, e.old_text), e.path)
+
+
+# -- the summary ----------------------------------------------------------------------------
+
+_ORDER = {"add": 0, "change": 1, "remove": 2}
+
+
+def format_plan(plan: AnnotationPlan, *, written: bool) -> str:
+    """The per-file list of fields added, changed and removed, then a one-line summary."""
+    lines = [
+        f"pullproof annotate {plan.root}"
+        + ("" if written else " (dry run: nothing written; add --write to write)"),
+        "",
+    ]
+    counts = {"add": 0, "change": 0, "remove": 0}
+    refs: set[str] = set()
+    files = 0
+    for e in plan.edits:
+        shown = [c for c in e.changes if c.action != "keep"]
+        if not shown and not e.notes:
+            continue
+        files += 1 if shown else 0
+        lines.append(f"{e.file}:")
+        for c in sorted(shown, key=lambda c: (natural_key(c.refs), _ORDER[c.action])):
+            counts[c.action] += 1
+            refs.add(c.refs)
+            if c.action == "add":
+                what = f"= {c.new}"
+            elif c.action == "change":
+                what = f"{c.old} -> {c.new}"
+            else:
+                what = f"(was {c.old}; no longer judged)"
+            lines.append(f"  {c.refs:<8} {c.action:<7} {c.name:<22} {what}")
+        lines.extend(f"  note: {n}" for n in e.notes)
+    if not any(counts.values()):
+        lines.append("every field is up to date; nothing to write")
+    verb = "wrote" if written else "would write"
+    lines.append(
+        f"{verb} {counts['add']} new, {counts['change']} changed and {counts['remove']} removed "
+        f"fields on {len(refs)} symbols in {files} files"
+    )
+    return "\n".join(lines) + "\n"
