@@ -287,3 +287,25 @@ def test_bad_values(parser: Parser, field: str, part: str, text: str, expected: 
 def test_error_without_part_names_the_field() -> None:
     with pytest.raises(ValueParseError, match=r"^field 'Value': cannot read 'abc'; "):
         parse_resistance("abc")
+
+
+# SI prefixes and their powers of ten (SI Brochure, 9th ed., table 7; IEC 60027-1).
+@pytest.mark.parametrize(
+    ("value", "unit", "sig", "text"),
+    [
+        (4700.0, "Ω", 3, "4.7 kΩ"),
+        (1.35e6, "Ω", 3, "1.35 MΩ"),
+        (1e-6, "A", 3, "1 µA"),
+        (4.7e-9, "F", 3, "4.7 nF"),
+        (999.97, "Ω", 3, "1 kΩ"),  # rounding carries into the next prefix
+        (-0.4e-3, "A", 3, "−400 µA"),
+        (0.0, "V", 3, "0 V"),
+        (1770.33, "Ω", 4, "1.77 kΩ"),
+        (float("inf"), "Ω", 3, "∞"),
+        (float("nan"), "V", 3, "unknown"),
+    ],
+)
+def test_format_si(value: float, unit: str, sig: int, text: str) -> None:
+    from pullproof.units import format_si
+
+    assert format_si(value, unit, sig=sig) == text
