@@ -11,10 +11,10 @@ import shutil
 from pathlib import Path
 
 import pytest
-from conftest import CONNECTIVITY, FIXTURES
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
+from conftest import CONNECTIVITY, FIXTURES
 from pullproof.cli import main
 
 # Roots whose sub-sheets are copied beside the mutated root, so hierarchy code runs too.
@@ -25,7 +25,7 @@ SOURCES = [
     FIXTURES / "demo" / "inputs.kicad_sch",
 ]
 TEXTS = [(p, p.read_text(encoding="utf-8")) for p in SOURCES]
-NOISE = st.sampled_from(list('()"\\0123456789.-e \n\t{}') + ["inf", "nan", "1e999", "(("])
+NOISE = st.sampled_from([*list('()"\\0123456789.-e \n\t{}'), "inf", "nan", "1e999", "(("])
 
 
 @st.composite
