@@ -29,7 +29,7 @@ from .nets import (
     build_circuit,
     natural_key,
 )  # _Builder: rebuild from texts held in memory
-from .results import NetworkResult, ReviewResult
+from .results import NetworkResult, ReviewResult, Verdict
 from .review import Selection, review
 from .schematic.hierarchy import load_hierarchy
 from .schematic.reader import read_text
@@ -154,9 +154,12 @@ def _fields(result: NetworkResult, stamp: str) -> tuple[tuple[str, str], ...]:
     if rec is not None and rec.pick is not None:
         pick = f"{format_rkm(rec.pick)} ({rec.series})"
     reason = " ".join(result.reason.split())
+    window = window_text(result.window)
+    if result.verdict is Verdict.INCOMPLETE:  # limits that need a missing value are not in it
+        window += " (partial)"
     return (
         ("pullproof.verdict", result.verdict.value),
-        ("pullproof.window", window_text(result.window)),
+        ("pullproof.window", window),
         ("pullproof.recommended", pick),
         ("pullproof.reason", reason),
         (_REVIEWED, stamp),
