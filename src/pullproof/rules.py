@@ -22,6 +22,7 @@ from typing import Any
 from .errors import Location, RulesError, ValueParseError
 from .eseries import SERIES
 from .provenance import Origin, Provenance, Sourced, Status
+from .textfile import read_utf8
 from .units import (
     Q_,
     parse_capacitance,
@@ -348,10 +349,7 @@ def load_rules(root: Path, explicit: Path | None = None) -> Rules:
     path = explicit if explicit is not None else Path(root).parent / RULES_FILE
     if explicit is None and not path.is_file():
         return _build(None, {})
-    try:
-        text = path.read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError) as exc:
-        raise RulesError(f"cannot read rules file {path}: {exc}") from None
+    text = read_utf8(path, RulesError, "rules file")
     try:
         doc = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
@@ -367,6 +365,9 @@ def _build(reader: _Reader | None, doc: Mapping[str, Any]) -> Rules:
     values: dict[str, Sourced | str | None] = {}
     valid = [*KEYS, "rails", "net"]
     for dotted in flat:
+        if dotted in _SECTIONS:  # a section name given a plain value, e.g. temperature = 5
+            assert reader is not None
+            raise reader.error(dotted, f"rules key {dotted!r}: write a table, e.g. [{dotted}]")
         if dotted not in KEYS and dotted not in ("rails", "net"):
             assert reader is not None
             raise reader.unknown(dotted, valid)
@@ -440,12 +441,15 @@ def _nets(reader: _Reader | None, entries: Any) -> tuple[tuple[str, Mapping[str,
         raise reader.error("net", "rules key 'net': write [[net]] entries with match = \"…\"")
     out = []
     for entry in entries:
+        if not isinstance(entry, dict):
+            raise reader.error("net", "rules key 'net': write [[net]] entries with match = \"…\"")
         for key in entry:
             if key not in _NET_KEYS:
                 raise reader.unknown(f"net.{key}", [f"net.{k}" for k in sorted(_NET_KEYS)])
         pattern = entry.get("match")
         if not isinstance(pattern, str) or not pattern:
-            raise reader.error("net", 'a [[net]] entry needs match = "NET-PATTERN"')
+            where = "net.match" if "match" in entry else "net"
+            raise reader.error(where, 'a [[net]] entry needs match = "NET-PATTERN"')
         parsed = {
             k: reader.value(f"net.{k}", _NET_KINDS[k], v) for k, v in entry.items() if k != "match"
         }

@@ -290,7 +290,9 @@ def _span(text: Any, field: str, part: str) -> tuple[float, float]:
         hi = float(parse_voltage(text[1], field=field, part=part).to("V").magnitude)
         if lo <= hi:
             return lo, hi
-    raise ValueParseError(str(text), expected='a voltage or a range ["2.3V", "2.7V"]', field=field)
+    raise ValueParseError(
+        str(text), expected='a voltage or a range ["2.3V", "2.7V"]', field=field, part=part
+    )
 
 
 def _row(table: Any, keys: tuple[str, ...], field: str, part: str) -> LevelRow:
@@ -316,6 +318,13 @@ def _row(table: Any, keys: tuple[str, ...], field: str, part: str) -> LevelRow:
         else:
             raise ValueParseError(key, expected=f"one of vdd, {', '.join(keys)}", field=name)
     return LevelRow(lo, hi, MappingProxyType(values), frozenset(per_volt))
+
+
+def _rows(table: Mapping[str, Any], key: str, part: str) -> list[Any]:
+    rows = table.get(key, [])
+    if not isinstance(rows, list):
+        raise ValueParseError(str(rows), expected=f"[[{key}]] rows", field=key, part=part)
+    return rows
 
 
 _FAMILY_KEYS = frozenset(
@@ -345,9 +354,15 @@ def family_from_table(
             raise ValueParseError(key, expected="a known key (see the file header)", part=part)
     default = _status(table.get("status", "user"), f"{name}.status")
     statuses = dict.fromkeys(_STATUS_KEYS, default)
-    for key, word in dict(table.get("status_of", {})).items():
+    status_of = table.get("status_of", {})
+    if not isinstance(status_of, dict):
+        raise ValueParseError(str(status_of), expected="a table", field="status_of", part=part)
+    for key, word in status_of.items():
         if key not in _STATUS_KEYS:
-            raise ValueParseError(key, expected=f"one of {', '.join(sorted(_STATUS_KEYS))}")
+            raise ValueParseError(
+                key, expected=f"one of {', '.join(sorted(_STATUS_KEYS))}", field="status_of",
+                part=part,
+            )  # fmt: skip
         statuses[key] = _status(word, f"{name}.status_of.{key}")
     if "supply" not in table:
         raise ValueParseError("", expected='supply = ["min V", "max V"]', field="supply", part=part)
@@ -359,7 +374,9 @@ def family_from_table(
             return None
         q = parse_current(str(text), field=key, part=part)
         if q.magnitude < 0:
-            raise ValueParseError(str(text), expected="a non-negative magnitude", field=key)
+            raise ValueParseError(
+                str(text), expected="a non-negative magnitude", field=key, part=part
+            )
         return q
 
     note = str(table.get("note", ""))
@@ -384,8 +401,10 @@ def family_from_table(
         c_in=None
         if table.get("c_in") is None
         else parse_capacitance(str(table["c_in"]), field="c_in", part=part),
-        levels=tuple(_row(r, _LEVEL_KEYS, "levels", part) for r in table.get("levels", ())),
-        schmitt=tuple(_row(r, _SCHMITT_KEYS, "schmitt", part) for r in table.get("schmitt", ())),
+        levels=tuple(_row(r, _LEVEL_KEYS, "levels", part) for r in _rows(table, "levels", part)),
+        schmitt=tuple(
+            _row(r, _SCHMITT_KEYS, "schmitt", part) for r in _rows(table, "schmitt", part)
+        ),
         origin=origin,
         extra=MappingProxyType({k: v for k, v in table.items() if k in extra_keys}),
     )

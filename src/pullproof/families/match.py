@@ -24,10 +24,11 @@ from types import MappingProxyType
 from typing import Any
 
 from ..circuit import Part
-from ..errors import Location, ValueParseError
+from ..errors import Location, PullproofError, ValueParseError
 from ..network import Missing
 from ..provenance import Origin, Provenance, Sourced, Status
 from ..rules import Rules
+from ..textfile import read_utf8
 from ..units import (
     Q_,
     ResistorText,
@@ -328,14 +329,28 @@ _ENTRY_KEYS = frozenset(
 )
 
 
+class PartLibraryError(PullproofError, ValueError):
+    """A part-library file that cannot be opened or is not UTF-8 text."""
+
+
+def _globs(table: Mapping[str, Any], key: str, default: str, part: str) -> tuple[str, ...]:
+    # A bare string would iterate as single characters: insist on a list of strings.
+    value = table.get(key, [default])
+    if not (isinstance(value, list) and value and all(isinstance(v, str) for v in value)):
+        raise ValueParseError(str(value), expected='a list of globs such as ["*MCU*"]',
+                              field=key, part=part)  # fmt: skip
+    return tuple(value)
+
+
 def load_part_library(path: Path) -> PartLibrary:
     """Read a part library (TOML, ``[part.NAME]`` tables; syntax in the example file header).
 
     Raises:
         ValueParseError: malformed TOML, an unknown key or an unreadable value, naming the file.
     """
+    text = read_utf8(Path(path), PartLibraryError, "part library")
     try:
-        doc = tomllib.loads(Path(path).read_text(encoding="utf-8"))
+        doc = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         m = re.search(r"\(at line (\d+), column (\d+)\)", str(exc))
         loc = Location(str(path), int(m.group(1)), int(m.group(2))) if m else None
@@ -343,11 +358,17 @@ def load_part_library(path: Path) -> PartLibrary:
         raise ValueParseError(
             str(path), expected=f"a TOML part library ({message})", location=loc
         ) from None
-    except OSError as exc:
-        raise ValueParseError(str(path), expected=f"a readable file ({exc.strerror})") from None
     entries = []
-    for name, table in doc.get("part", {}).items():
+    for key in doc:
+        if key != "part":
+            raise ValueParseError(key, expected="only [part.NAME] tables", part=str(path))
+    parts = doc.get("part", {})
+    if not isinstance(parts, dict):
+        raise ValueParseError(str(parts), expected="[part.NAME] tables", part=str(path))
+    for name, table in parts.items():
         part = f"{Path(path).name} [part.{name}]"
+        if not isinstance(table, dict):
+            raise ValueParseError(str(table), expected="a table of keys", part=part)
         kind_word = str(table.get("kind", "microcontroller"))
         kinds = {k.value: k for k in PartKind}
         if kind_word not in kinds:
@@ -368,19 +389,30 @@ def load_part_library(path: Path) -> PartLibrary:
         }
         pull = None
         if "internal_pull" in table:
-            lo, hi = (
-                parse_resistance(str(t), field="internal_pull", part=part)
-                for t in table["internal_pull"]
-            )
+            span = table["internal_pull"]
+            if not (isinstance(span, list) and len(span) == 2):
+                raise ValueParseError(
+                    str(span), expected='a range ["30k", "50k"]', field="internal_pull", part=part
+                )
+            lo, hi = (parse_resistance(str(t), field="internal_pull", part=part) for t in span)
+            if lo > hi:
+                raise ValueParseError(
+                    str(span), expected="the smaller value first", field="internal_pull", part=part
+                )
             pull = (Sourced(lo, src), Sourced(hi, src))
+        schmitt = table.get("schmitt_inputs", False)
+        if not isinstance(schmitt, bool):
+            raise ValueParseError(
+                str(schmitt), expected="true or false", field="schmitt_inputs", part=part
+            )
         entries.append(
             LibraryEntry(
                 name=name,
-                match=tuple(str(x) for x in table.get("match", [name])),
+                match=_globs(table, "match", name, part),
                 kind=kinds[kind_word],
                 family=family,
-                pins=tuple(str(x) for x in table.get("pins", ["*"])),
-                schmitt=bool(table.get("schmitt_inputs", False)),
+                pins=_globs(table, "pins", "*", part),
+                schmitt=schmitt,
                 internal_pull=pull,
                 ratings=MappingProxyType(ratings),
             )
