@@ -67,13 +67,15 @@ class Selection:
 
 
 _RANGE = re.compile(r"^([A-Za-z#_]+)(\d+)-(?:\1)?(\d+)$")
+_REF = re.compile(r"^[A-Za-z#_][\w#.]*$")  # R3, SW_A2, #PWR01: what a reference looks like
 
 
 def parse_ref_list(text: str) -> frozenset[str]:
     """``"R3,R7-R12"`` → {R3, R7, R8, …, R12}.
 
     Raises:
-        SelectionError: a range that runs backwards or an empty item.
+        SelectionError: a range that runs backwards, an empty item or one that is not a
+            reference.
     """
     refs: set[str] = set()
     for item in (t.strip() for t in text.split(",")):
@@ -81,6 +83,10 @@ def parse_ref_list(text: str) -> frozenset[str]:
             raise SelectionError(f"--ref: empty item in {text!r}; expected e.g. R3,R7-R12")
         m = _RANGE.match(item)
         if m is None:
+            if not _REF.match(item):
+                raise SelectionError(
+                    f"--ref: {item!r} is not a reference or range; expected e.g. R3,R7-R12"
+                )
             refs.add(item)
             continue
         prefix, a, b = m.group(1), int(m.group(2)), int(m.group(3))
@@ -265,7 +271,15 @@ def review(
 def review_circuit(
     circuit: Circuit, rules: Rules, library: PartLibrary, select: Selection
 ) -> ReviewResult:
-    """Review an already-built circuit (the rest of :func:`review`)."""
+    """Review an already-built circuit (the rest of :func:`review`).
+
+    Raises:
+        SelectionError: ``--ref`` names no part of the schematic (a typo would otherwise
+            report an empty, passing review).
+    """
+    if select.refs is not None and all(circuit.part(r) is None for r in select.refs):
+        named = ", ".join(sorted(select.refs)[:5]) + (", …" if len(select.refs) > 5 else "")
+        raise SelectionError(f"--ref: no part {named} in the schematic")
     infos = {p.ref: resolve_part(p, library, rules) for p in circuit.parts}
     resolver = Resolver(circuit, infos, rules)
     topo = find_pulls(circuit, lambda p: _kind_word(infos[p.ref]), resolver.rail_key)
