@@ -178,12 +178,14 @@ def test_v6_ids_are_unique_and_continue_the_symbol(tmp_path: Path) -> None:
     assert [props[n].first("id").atom(0) for n in FIELDS] == [4, 5, 6, 7, 8]  # type: ignore[union-attr]
 
 
-def test_crlf_files_keep_their_newlines(tmp_path: Path) -> None:
+def test_crlf_and_byte_order_mark_are_kept(tmp_path: Path) -> None:
     root = _multiline(_bench(tmp_path, V8), "  ")
-    root.write_bytes(root.read_bytes().replace(b"\n", b"\r\n"))
+    root.write_bytes(b"\xef\xbb\xbf" + root.read_bytes().replace(b"\n", b"\r\n"))
     apply_annotation(plan_annotation(root, today=DAY))
     data = root.read_bytes()
+    assert data.startswith(b"\xef\xbb\xbf(kicad_sch")
     assert data.count(b"\n") == data.count(b"\r\n")
+    assert b'"pullproof.verdict" "pass"' in data
 
 
 # ------------------------------------------------------------------ the demo

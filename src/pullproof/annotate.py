@@ -319,6 +319,11 @@ def _splice_symbol(
     return cuts, changes
 
 
+def _unmarked(text: str) -> str:
+    """The reader turns a byte-order mark into a space of the same length; so do we."""
+    return " " + text[1:] if text.startswith("\ufeff") else text
+
+
 def _edit_file(file: str, path: str, targets: Sequence[_Target], display: str) -> FileEdit:
     try:
         text = Path(path).read_bytes().decode("utf-8")
@@ -326,8 +331,7 @@ def _edit_file(file: str, path: str, targets: Sequence[_Target], display: str) -
         raise AnnotateError(
             f"{display}: cannot read the file again: {exc}; nothing written"
         ) from None
-    # the reader turns a byte-order mark into a space of the same length; parse the same way
-    root = parse(" " + text[1:] if text.startswith("\ufeff") else text, display)
+    root = parse(_unmarked(text), display)
     by_span = {n.span: n for n in root.nodes("symbol")}
     dialect = _Dialect(text, _version(root))
     cuts: list[tuple[int, int, str]] = []
@@ -367,7 +371,7 @@ def _check(root: str, circuit: Circuit, edits: Sequence[FileEdit]) -> None:
             continue
         name = texts[key].name
         try:
-            model = read_text(edit.new_text, name)
+            model = read_text(_unmarked(edit.new_text), name)
         except PullproofError as exc:
             raise AnnotateError(f"{name}: the annotated text does not read back ({exc}); "
                                 "nothing written") from None  # fmt: skip
