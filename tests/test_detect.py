@@ -56,6 +56,7 @@ def test_rail_from_name_with_default_tolerance(
 ) -> None:
     rail = network(resolved, "/START_BTN").rail
     assert rail.name == "+5V"
+    # 5 V ± 5 %: the default rail_tolerance, a common regulator accuracy (common practice)
     assert rail.v_min.magnitude("V") == pytest.approx(4.75)
     assert rail.v_max.magnitude("V") == pytest.approx(5.25)
 

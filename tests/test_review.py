@@ -96,9 +96,10 @@ BOUNDS = [
     ("/DOOR_REED", "resistor-power", "min", 2880.0),
     # (3.3 − 0.4) V / (4 mA − 1 µA) (driver sink; the buffer's fields)
     ("/SPINDLE_OK", "driver-sink", "min", 2.9 / (4e-3 - 1e-6)),
-    # UM10204 §7.1 eq. (1): (3.3 − 0.4) V / 3 mA = 966.7 Ω (confirmed)
+    # UM10204 §7.1 eq. (2): (3.3 − 0.4) V / 3 mA = 966.7 Ω (confirmed)
     ("/I2C_SDA", "driver-sink", "min", 2.9 / 3e-3),
-    # UM10204 §7.1 eq. (2): 300 ns / (0.8473 × 200 pF) = 1770.3 Ω (confirmed)
+    # UM10204 §7.1 eq. (1): 300 ns / (0.8473 × 200 pF) = 1770.3 Ω (equation confirmed;
+    # Fast-mode t_r 300 ns from memory)
     ("/I2C_SDA", "edge-rate", "max", 300e-9 / (0.8473 * 200e-12)),
     # 1 k series resistor adds its drop: 1 kΩ × 1 µA = 1 mV (JESD7A leakage, from memory)
     ("/JOG_RAW", "high-level-holds", "max", (4.75 - 0.7 * 4.75 - 0.1 - 1e-3) / 1e-6),

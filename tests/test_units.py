@@ -117,17 +117,17 @@ def test_resistor_tcr() -> None:
         (parse_current, "0.4mA", Q_(0.4e-3, "A")),
         (parse_current, "-0.4 mA", Q_(-0.4e-3, "A")),
         (parse_current, "20 µA", Q_(20e-6, "A")),
-        (parse_voltage, "3V3", Q_(3.3, "V")),
+        (parse_voltage, "3V3", Q_(3.3, "V")),  # IEC 60062 letter as decimal marker
         (parse_voltage, "+5V", Q_(5.0, "V")),
-        (parse_voltage, "1V8", Q_(1.8, "V")),
+        (parse_voltage, "1V8", Q_(1.8, "V")),  # IEC 60062 letter as decimal marker
         (parse_voltage, "12 V", Q_(12.0, "V")),
         (parse_voltage, "-12V", Q_(-12.0, "V")),
         (parse_voltage, "230VAC", Q_(230.0, "V")),
         (parse_voltage, "500mV", Q_(0.5, "V")),
         (parse_capacitance, "100n", Q_(100e-9, "F")),
-        (parse_capacitance, "4n7", Q_(4.7e-9, "F")),
+        (parse_capacitance, "4n7", Q_(4.7e-9, "F")),  # IEC 60062 letter as decimal marker
         (parse_capacitance, "100 nF", Q_(100e-9, "F")),
-        (parse_capacitance, "2p2", Q_(2.2e-12, "F")),
+        (parse_capacitance, "2p2", Q_(2.2e-12, "F")),  # IEC 60062 letter as decimal marker
         (parse_capacitance, "10µF", Q_(10e-6, "F")),
         (parse_time, "10ms", Q_(0.01, "s")),
         (parse_time, "1.5 s", Q_(1.5, "s")),
