@@ -24,11 +24,7 @@ from . import __version__
 from .circuit import Circuit
 from .errors import PullproofError, SourceText
 from .eseries import format_rkm
-from .nets import (
-    _Builder,
-    build_circuit,
-    natural_key,
-)  # _Builder: rebuild from texts held in memory
+from .nets import build_circuit, circuit_from_hierarchy, natural_key
 from .results import NetworkResult, ReviewResult, Verdict
 from .review import Selection, review
 from .schematic.hierarchy import load_hierarchy
@@ -381,7 +377,7 @@ def _check(root: str, circuit: Circuit, edits: Sequence[FileEdit]) -> None:
             raise AnnotateError(f"{name}: the annotated text changes the sheets; nothing written")
         models[key] = model
         texts[key] = SourceText(name, edit.new_text)
-    after = _Builder(replace(hier, models=models, texts=texts)).circuit(root)
+    after = circuit_from_hierarchy(replace(hier, models=models, texts=texts), root)
     if _partition(after) != _partition(circuit):
         raise AnnotateError(f"{root}: the annotated text would change the nets; nothing written")
 

@@ -38,7 +38,7 @@ from .schematic import LibSymbol, SymbolPlacement
 from .schematic.hierarchy import Hierarchy, Instance, load_hierarchy
 from .schematic.sheetgraph import SheetGraph, bus_members, sheet_graph
 
-__all__ = ["build_circuit", "natural_key"]
+__all__ = ["build_circuit", "circuit_from_hierarchy", "natural_key"]
 
 _DIGITS = re.compile(r"(\d+)")
 _PROPS_NOT_FIELDS = frozenset({"Reference", "Value"})
@@ -266,5 +266,9 @@ def build_circuit(root: str | os.PathLike[str]) -> Circuit:
     :raises SchematicError: a file is missing, unreadable, not a schematic, or a
         sheet includes itself.
     """
-    hier = load_hierarchy(root)
-    return _Builder(hier).circuit(os.fspath(root))
+    return circuit_from_hierarchy(load_hierarchy(root), os.fspath(root))
+
+
+def circuit_from_hierarchy(hier: Hierarchy, root: str) -> Circuit:
+    """Connect an already-read hierarchy (e.g. texts edited in memory before writing)."""
+    return _Builder(hier).circuit(root)
