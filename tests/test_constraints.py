@@ -414,6 +414,7 @@ def test_input_tolerance(
 
 
 def test_preferred_range_is_soft() -> None:
+    # 1 kΩ … 100 kΩ, a customary logic-pull range (common practice), comes back as soft bounds
     bounds = preferred_range(
         network(inp(HC45), net_rules=rules(preferred_min=1e3, preferred_max=100e3))
     )
