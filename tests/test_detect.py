@@ -137,3 +137,20 @@ def test_enabled_internal_pull_field_error() -> None:
         "field 'pullproof.internal_pull' of U1: cannot read 'sideways 4k7'; "
         "expected [up|down] MIN..MAX, e.g. up 30k..50k"
     )
+
+
+def test_unknown_rail_network_is_incomplete_and_its_chart_says_unknown(tmp_path: Path) -> None:
+    from pullproof.report.chart import chart_text
+    from pullproof.results import Verdict
+    from pullproof.review import review
+
+    bench = LabelPlacer(frozenset({"VLOGIC", "GND"}))
+    bench.resistor("R1", "10k", "VLOGIC", "KEY")
+    bench.place("SW1", "Switch:SW_Push", SWITCH_PINS, "KEY", {"1": "KEY", "2": "GND"})
+    result = review(bench.b.write(tmp_path / "kiln.kicad_sch"))
+    (net,) = result.networks
+    assert net.verdict is Verdict.INCOMPLETE and net.bounds == ()
+    # Nothing was computed, so neither side of the window may read as "no limit".
+    text = chart_text(net)
+    assert "lower limit unknown" in text and "upper limit unknown" in text
+    assert "no upper limit" not in text

@@ -75,7 +75,11 @@ def _binding_titles(result: NetworkResult, kind: BoundKind, ohms: float) -> str:
 
 def _side_word(result: NetworkResult, kind: BoundKind) -> str:
     """Why a window side is open: a bound could not be computed, or none applies."""
-    unknown = any(b.ohms is None for b in _hard(result, kind))
+    # A network judged before any bound could be computed (e.g. its rail voltage is
+    # unknown) has no bounds at all: its sides are unknown, not open.
+    unknown = any(b.ohms is None for b in _hard(result, kind)) or (
+        not result.bounds and bool(result.missing)
+    )
     lower = kind is BoundKind.MIN
     if unknown:
         return "lower limit unknown" if lower else "upper limit unknown"
