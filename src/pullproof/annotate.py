@@ -24,10 +24,10 @@ from . import __version__
 from .circuit import Circuit
 from .errors import PullproofError, SourceText
 from .eseries import format_rkm
-from .nets import build_circuit, circuit_from_hierarchy, natural_key
+from .nets import circuit_from_hierarchy, natural_key
 from .results import NetworkResult, ReviewResult, Verdict
 from .review import Selection, review
-from .schematic.hierarchy import load_hierarchy
+from .schematic.hierarchy import Hierarchy, load_hierarchy
 from .schematic.reader import read_text
 from .sexpr import Node, parse
 
@@ -355,9 +355,8 @@ def _partition(circuit: Circuit) -> set[frozenset[tuple[str, str]]]:
     return {frozenset((m.ref, m.pin) for m in n.members) for n in circuit.nets}
 
 
-def _check(root: str, circuit: Circuit, edits: Sequence[FileEdit]) -> None:
+def _check(root: str, hier: Hierarchy, circuit: Circuit, edits: Sequence[FileEdit]) -> None:
     """Parse every new text and rebuild the circuit from them: the nets must not change."""
-    hier = load_hierarchy(root)
     new_by_path = {e.path: e for e in edits}
     models = dict(hier.models)
     texts = dict(hier.texts)
@@ -405,8 +404,10 @@ def plan_annotation(
             would not read back with the same nets (:class:`AnnotateError`).
     """
     select = select or Selection()
-    result = review(root, rules=rules, parts=parts, select=select)
-    circuit = build_circuit(root)
+    # Read the files once: the hierarchy feeds the review and the read-back check.
+    hier = load_hierarchy(root)
+    circuit = circuit_from_hierarchy(hier, os.fspath(root))
+    result = review(root, rules=rules, parts=parts, select=select, circuit=circuit)
     stamp = f"pullproof {__version__}, {(today or _dt.date.today()).isoformat()}"
     targets = _targets(circuit, result, select, stamp)
     by_file: dict[str, list[_Target]] = {}
@@ -418,7 +419,7 @@ def plan_annotation(
         path = circuit.files[file]
         display = os.path.join(os.path.dirname(os.fspath(root)), sheet_names.get(file, file))
         edits.append(_edit_file(file, path, by_file[file], display))
-    _check(os.fspath(root), circuit, edits)
+    _check(os.fspath(root), hier, circuit, edits)
     return AnnotationPlan(os.fspath(root), result, tuple(edits))
 
 

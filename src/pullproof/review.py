@@ -245,6 +245,7 @@ def review(
     rules: str | os.PathLike[str] | None = None,
     parts: Sequence[str | os.PathLike[str]] = (),
     select: Selection | None = None,
+    circuit: Circuit | None = None,
 ) -> ReviewResult:
     """Review every pull resistor of the schematic rooted at ``root``.
 
@@ -253,12 +254,13 @@ def review(
         rules: an explicit rules file; by default ``pullproof.toml`` beside the root.
         parts: part-library files; by default ``pullproof-parts.toml`` beside the root.
         select: restrict the judged resistors (``--ref``, ``--where``).
+        circuit: ``root`` already read and connected (saves reading it again).
 
     Raises:
         PullproofError: unreadable or malformed schematic, rules, part library or field.
     """
     root_path = Path(root)
-    circuit = build_circuit(root_path)
+    circuit = circuit if circuit is not None else build_circuit(root_path)
     rules_obj = load_rules(root_path, Path(rules) if rules is not None else None)
     library = _library(root_path, [Path(p) for p in parts])
     result = review_circuit(circuit, rules_obj, library, select or Selection())
