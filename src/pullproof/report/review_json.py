@@ -40,34 +40,27 @@ def _missing(m: Missing) -> dict[str, str]:
     return {"what": m.what, "ref": m.ref, "hint": m.hint}
 
 
-def _bound(b: Bound) -> dict[str, Any]:
+def _limit(item: Bound | Check, **own: Any) -> dict[str, Any]:
+    """The keys bounds and checks share, with each one's own keys after the title."""
     return {
-        "constraint": b.constraint,
-        "title": b.title,
-        "kind": b.kind.value,
-        "ohms": b.ohms,
-        "hard": b.hard,
-        "formula": b.formula,
-        "substituted": b.substituted,
-        "source": b.source,
-        "corner": b.corner,
-        "terms": [_term(t) for t in b.terms],
-        "missing": [_missing(m) for m in b.missing],
+        "constraint": item.constraint,
+        "title": item.title,
+        **own,
+        "hard": item.hard,
+        "formula": item.formula,
+        "substituted": item.substituted,
+        "source": item.source,
+        "terms": [_term(t) for t in item.terms],
+        "missing": [_missing(m) for m in item.missing],
     }
+
+
+def _bound(b: Bound) -> dict[str, Any]:
+    return {**_limit(b, kind=b.kind.value, ohms=b.ohms), "corner": b.corner}
 
 
 def _check(c: Check) -> dict[str, Any]:
-    return {
-        "constraint": c.constraint,
-        "title": c.title,
-        "ok": c.ok,
-        "hard": c.hard,
-        "formula": c.formula,
-        "substituted": c.substituted,
-        "source": c.source,
-        "terms": [_term(t) for t in c.terms],
-        "missing": [_missing(m) for m in c.missing],
-    }
+    return _limit(c, ok=c.ok)
 
 
 def _network(r: NetworkResult) -> dict[str, Any]:
