@@ -89,6 +89,10 @@ def enabled_internal_pull(part: Part) -> tuple[tuple[Sourced, Sourced], Directio
     return (Sourced(lo, where), Sourced(hi, where)), way
 
 
+def _magnitude(value: Sourced | None) -> Sourced | None:
+    return None if value is None else Sourced(abs(value.value), value.source)
+
+
 class Resolver:
     """Resolve pull sites of one circuit with one set of rules and part data."""
 
@@ -263,10 +267,9 @@ class Resolver:
 
     def _driver(self, pin: PinOnNet) -> DriverOnNet:
         info = self.infos[pin.ref]
-        part = self.circuit.part(pin.ref)
-        assert part is not None
         r = info.ratings
-        fields = {k: self._field_current_or_voltage(part, k) for k in ("i_ol", "v_ol", "i_off")}
+        # Driver numbers come from the part's ratings (fields or part library), as magnitudes.
+        fields = {k: _magnitude(r.get(k)) for k in ("i_ol", "v_ol", "i_off")}
         if info.kind is PartKind.OPTOCOUPLER:
             return DriverOnNet(
                 pin.ref, pin.pin, "optocoupler", None, r.get("vce_sat"),
@@ -291,18 +294,6 @@ class Resolver:
             return DriverOnNet(pin.ref, pin.pin, "transistor", i_ol, v_ol, i_off)
         kind = "open-collector" if "collector" in pin.name.lower() else "open-drain"
         return DriverOnNet(pin.ref, pin.pin, kind, fields["i_ol"], fields["v_ol"], fields["i_off"])
-
-    @staticmethod
-    def _field_current_or_voltage(part: Part, key: str) -> Sourced | None:
-        from .units import parse_current, parse_voltage
-
-        text = part.field(f"pullproof.{key}")
-        if text is None:
-            return None
-        reader = parse_voltage if key.startswith("v_") else parse_current
-        value = reader(text, field=f"pullproof.{key}", part=part.ref)
-        where = f"field 'pullproof.{key}' on {part.ref}"
-        return Sourced(abs(value), Provenance(Origin.FIELD, where, Status.USER))
 
     def _capacitor(self, pin: PinOnNet, missing: list[Missing]) -> CapacitorOnNet | None:
         farads = self.infos[pin.ref].ratings.get("capacitance")

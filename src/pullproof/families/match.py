@@ -322,6 +322,9 @@ _RATING_READERS: Mapping[str, Callable[..., Any]] = MappingProxyType(
         "dark_current": parse_current,
         "vce_sat": parse_voltage,
         "capacitance": parse_capacitance,
+        "i_ol": parse_current,
+        "v_ol": parse_voltage,
+        "i_off": parse_current,
     }
 )
 _ENTRY_KEYS = frozenset(
