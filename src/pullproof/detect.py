@@ -298,9 +298,10 @@ class Resolver:
     def _capacitor(self, pin: PinOnNet, missing: list[Missing]) -> CapacitorOnNet | None:
         farads = self.infos[pin.ref].ratings.get("capacitance")
         if farads is None:
-            missing.append(
-                Missing(f"capacitance of {pin.ref}", pin.ref, "write the Value, e.g. 100n")
-            )
+            part = self.circuit.part(pin.ref)
+            text = part.value if part is not None else ""
+            hint = f"its Value {text!r} is not a capacitance; write e.g. 100n or 470pF/50V"
+            missing.append(Missing(f"capacitance of {pin.ref}", pin.ref, hint))
             return None
         far = self._far_rail(pin.far_net)
         return CapacitorOnNet(pin.ref, farads, far.name if far else pin.far_net)

@@ -173,12 +173,14 @@ def _unknown_rail_result(u: UnknownRail, resolver: Resolver) -> NetworkResult | 
     is unknown, a finding when the resistor's own value is unreadable."""
     infos = [resolver.infos[r].resistor for r in u.refs]
     if any(i is None or i.ohms is None for i in infos):
+        bad = [r for r, i in zip(u.refs, infos, strict=True) if i is None or i.ohms is None]
+        texts = ", ".join(f"{r} Value {_value_text(resolver, r)!r}" for r in bad)
         return Finding(
             "unreadable-value",
             Verdict.INCOMPLETE,
             u.site.net.name,
             u.refs,
-            f"{', '.join(u.refs)} pulls {u.site.net.name} but its Value cannot be read as a "
+            f"{', '.join(u.refs)} pulls {u.site.net.name} but {texts} cannot be read as a "
             "resistance; write it like 4k7 or 10k",
         )
     hint = f'add [rails] {u.rail} = "3V3" (its nominal voltage) to {RULES_FILE}'
@@ -218,6 +220,11 @@ def _unknown_rail_result(u: UnknownRail, resolver: Resolver) -> NetworkResult | 
         recommendation=None,
         missing=(missing,),
     )
+
+
+def _value_text(resolver: Resolver, ref: str) -> str:
+    part = resolver.circuit.part(ref)
+    return part.value if part is not None else ""
 
 
 def _check_findings(result: NetworkResult) -> list[Finding]:

@@ -33,6 +33,7 @@ from ..units import (
     Q_,
     ResistorText,
     parse_capacitance,
+    parse_capacitor_text,
     parse_current,
     parse_percent,
     parse_power,
@@ -572,8 +573,8 @@ def _ratings(part: Part, entry: LibraryEntry | None, kind: PartKind) -> Ratings:
         # an unreadable capacitor Value is reported by the check that needs it, as missing data
         with contextlib.suppress(ValueParseError):
             values["capacitance"] = Sourced(
-                # "100nF 0603": the capacitance is the first word
-                parse_capacitance(part.value.split()[0], field="Value", part=part.ref),
+                # "100nF 0603", "470pF/50V", "100n/16V/X7R": the capacitance comes first
+                parse_capacitor_text(part.value, field="Value", part=part.ref).farads,
                 Provenance(Origin.VALUE, f"Value of {part.ref}", Status.USER),
             )
     for key, (value, reason, status) in _DEFAULTS.get(kind, {}).items():
