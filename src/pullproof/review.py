@@ -379,6 +379,8 @@ def _kind_word(info: PartInfo) -> str:
     """Map the data module's part kinds onto the words topology uses."""
     return {
         PartKind.RESISTOR: "resistor",
+        PartKind.POTENTIOMETER: "potentiometer",
+        PartKind.SENSOR: "sensor",
         PartKind.CAPACITOR: "capacitor",
         PartKind.SWITCH: "switch",
         PartKind.RELAY: "relay",

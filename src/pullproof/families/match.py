@@ -18,7 +18,6 @@ import re
 import tomllib
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
-from enum import StrEnum
 from pathlib import Path
 from types import MappingProxyType
 from typing import Any
@@ -43,6 +42,8 @@ from ..units import (
     parse_time,
     parse_voltage,
 )
+from .kinds import PartKind
+from .kinds import classify as classify_kind
 from .loader import Family, InputModel, family_from_table, load_families
 
 __all__ = [
@@ -105,81 +106,10 @@ FIELDS: Mapping[str, FieldDoc] = MappingProxyType(
 )
 
 
-class PartKind(StrEnum):
-    RESISTOR = "resistor"
-    CAPACITOR = "capacitor"
-    SWITCH = "switch"
-    RELAY = "relay"
-    OPTOCOUPLER = "optocoupler"
-    LED = "LED"
-    DIODE = "diode"
-    TRANSISTOR = "transistor"
-    LOGIC = "logic IC"
-    MCU = "microcontroller"
-    CONNECTOR = "connector"
-    OPAMP = "op-amp"
-    OTHER = "other"
-
-
-# Library-name rules first (the library says what a symbol is), then reference prefixes.
-_LIB_KIND: tuple[tuple[str, PartKind], ...] = (
-    ("Device:R*", PartKind.RESISTOR),
-    ("Device:C*", PartKind.CAPACITOR),
-    ("Device:LED*", PartKind.LED),
-    ("LED:*", PartKind.LED),
-    ("Device:D*", PartKind.DIODE),
-    ("Diode:*", PartKind.DIODE),
-    ("Device:Q*", PartKind.TRANSISTOR),
-    ("Transistor*", PartKind.TRANSISTOR),
-    ("Switch:*", PartKind.SWITCH),
-    ("Relay*", PartKind.RELAY),
-    ("Isolator:*", PartKind.OPTOCOUPLER),
-    ("Connector*", PartKind.CONNECTOR),
-    ("Amplifier_Operational:*", PartKind.OPAMP),
-    ("MCU_*", PartKind.MCU),
-    ("74xx:*", PartKind.LOGIC),
-    ("74xGxx:*", PartKind.LOGIC),
-    ("4xxx:*", PartKind.LOGIC),
-)
-_REF_KIND: tuple[tuple[str, PartKind], ...] = (
-    ("RN", PartKind.RESISTOR),
-    ("SW", PartKind.SWITCH),
-    ("LED", PartKind.LED),
-    ("OK", PartKind.OPTOCOUPLER),
-    ("ISO", PartKind.OPTOCOUPLER),
-    ("R", PartKind.RESISTOR),
-    ("C", PartKind.CAPACITOR),
-    ("S", PartKind.SWITCH),
-    ("K", PartKind.RELAY),
-    ("D", PartKind.DIODE),
-    ("Q", PartKind.TRANSISTOR),
-    ("T", PartKind.TRANSISTOR),
-    ("J", PartKind.CONNECTOR),
-    ("P", PartKind.CONNECTOR),
-)
-_MCU_NAME = re.compile(
-    r"(?i)ATMEGA|ATTINY|STM32|RP20[45]0|ESP32|ESP8266|PIC1[0268]|NRF5|SAMD|MSP430"
-)
-_OPTO_NAME = re.compile(r"(?i)^(PC8\d\d|TLP\d|6N13\d|H11|LTV|4N2\d|4N3\d|SFH6|EL8|CNY17)")
-
-
 def classify(part: Part) -> PartKind:
-    """The kind of a part from its library id, Value, reference prefix and pin types."""
-    for pattern, kind in _LIB_KIND:
-        if fnmatch.fnmatchcase(part.lib_id, pattern):
-            return kind
-    if family_from_name(part.value) or family_from_name(part.lib_id.split(":")[-1]):
-        return PartKind.LOGIC
-    if _MCU_NAME.search(part.value) or _MCU_NAME.search(part.lib_id):
-        return PartKind.MCU
-    if _OPTO_NAME.search(part.value):
-        return PartKind.OPTOCOUPLER
-    prefix = re.match(r"[A-Za-z]*", part.ref)
-    letters = prefix.group(0).upper() if prefix else ""
-    for start, kind in _REF_KIND:
-        if letters == start:
-            return kind
-    return PartKind.OTHER
+    """The kind of a part from its symbol name, Value, reference prefix and pins
+    (never from the library nickname; see :mod:`pullproof.families.kinds`)."""
+    return classify_kind(part, family_from_name)
 
 
 # ---------------------------------------------------------------- family patterns
