@@ -31,6 +31,7 @@ from .network import (
 )
 from .provenance import Origin, Provenance, Sourced, Status
 from .rules import RailSpec, Rules
+from .supplies import RailTie, supply_nets
 from .topology import PinOnNet, PullSite
 from .units import Q_, parse_resistance
 
@@ -101,26 +102,31 @@ class Resolver:
         self.infos = infos
         self.rules = rules
         self.nets = {n.name: n for n in circuit.nets}
+        self.supplies = supply_nets(circuit)
 
     # ------------------------------------------------------------------ rails
     def rail_of(self, net: Net) -> RailSpec | None:
-        """The rail a net stands for, from its name or any label on it (None: a signal)."""
-        if not net.power and not net.labels:
-            return None
-        for name in (net.name, *net.labels):
+        """The rail a net stands for (None: a signal): a rules entry, a power symbol, a whole
+        name that is a supply name, or a supply function (it feeds power pins)."""
+        for name in (net.name, *net.labels) if net.power or net.labels else ():
             spec = self.rules.rail(name)
             if spec is not None:
                 return spec
+        name = net.name.rsplit("/", 1)[-1]
         if net.power:
             # A power symbol names a supply even when its name states no voltage (VLOGIC):
             # a rail of unknown voltage, which the rules file can describe.
-            name = net.name.rsplit("/", 1)[-1]
             return RailSpec(name, None, None, None)
+        why = self.supplies.get(net.name, "")
+        if why:
+            # Named like a signal or not at all, but it powers something: a supply of
+            # unknown voltage, never a logic level.
+            return RailSpec(name, None, None, None, inferred=why)
         return None
 
-    def rail_key(self, net: Net) -> tuple[str, bool] | None:
+    def rail_key(self, net: Net) -> RailTie | None:
         spec = self.rail_of(net)
-        return None if spec is None else (spec.name, spec.ground)
+        return None if spec is None else RailTie(spec.name, spec.ground, not spec.inferred)
 
     def _rail(self, name: str) -> Rail | None:
         spec = self.rules.rail(name)

@@ -4,7 +4,7 @@ Every value carries its provenance: the rules key with file and line, or a named
 default with its reason. Values are written with their units as text ("5%",
 "3V3", "10ms", "100pF", "-40°C"); see :data:`KEYS` for every key, its default and
 why. Rails named like ``+5V``, ``3V3``, ``VCC_1V8``, ``-12V`` or ``VBUS`` need
-no entry: their voltage is read from the name.
+no entry: their voltage is read from the whole name (see :mod:`pullproof.supplies`).
 """
 
 from __future__ import annotations
@@ -22,6 +22,7 @@ from typing import Any
 from .errors import Location, RulesError, ValueParseError
 from .eseries import SERIES
 from .provenance import Origin, Provenance, Sourced, Status
+from .supplies import read_supply_name
 from .textfile import read_utf8
 from .units import (
     Q_,
@@ -102,6 +103,7 @@ class RailSpec:
     v_min: Sourced | None
     v_max: Sourced | None
     ground: bool = False
+    inferred: str = ""  # why a net is a supply by its function ("" when named or listed)
 
 
 @dataclass(frozen=True)
@@ -151,11 +153,12 @@ class Rules:
         if self.is_ground(net_name):
             zero = Sourced(Q_(0.0, "V"), _schematic(f"ground net {bare}"))
             return RailSpec(bare, zero, zero, zero, ground=True)
-        volts = rail_voltage_from_name(bare)
-        if volts is None:
-            if re.fullmatch(r"(?i)V(CC|DD|IO|DDIO|BAT|IN|SYS)\w*", bare):
-                return RailSpec(bare, None, None, None)
+        supply = read_supply_name(bare)  # the whole name must read as a supply name
+        if supply is None:
             return None
+        if supply.volts is None:
+            return RailSpec(bare, None, None, None)
+        volts = supply.volts
         tol = self.values["rail_tolerance"]
         assert isinstance(tol, Sourced)
         frac = tol.magnitude("")
@@ -203,38 +206,6 @@ def _bare(net_name: str) -> str:
 
 def _schematic(where: str) -> Provenance:
     return Provenance(Origin.SCHEMATIC, where, Status.USER)
-
-
-_RAIL_NAME = re.compile(
-    r"""
-    ^(?P<sign> [+-] )?
-    (?:
-        (?P<a> \d+ ) [V.P] (?P<b> \d+ ) V? [A-Z]*     # 3V3, 3.3V, 3P3, +3.3VP, 1V8
-      | (?P<c> \d+ ) V [A-Z]*                         # +5V, 12VA, 24V
-      | V (?P<d> \d+ ) P (?P<e> \d+ )                 # V3P3
-    )$
-    """,
-    re.VERBOSE,
-)
-
-
-def rail_voltage_from_name(name: str) -> float | None:
-    """The voltage a net name states (``+3V3`` → 3.3, ``VCC_1V8`` → 1.8, ``VBUS`` → 5.0)."""
-    upper = name.upper()
-    if upper in ("VBUS", "USB_VBUS", "VUSB"):
-        return 5.0  # USB bus power, common practice
-    for token in (upper, *re.split(r"[_\-\s]", upper)[1:], *re.split(r"[_\s]", upper)):
-        m = _RAIL_NAME.match(token)
-        if m is None:
-            continue
-        if m.group("a") is not None:
-            volts = float(f"{m.group('a')}.{m.group('b')}")
-        elif m.group("c") is not None:
-            volts = float(m.group("c"))
-        else:
-            volts = float(f"{m.group('d')}.{m.group('e')}")
-        return -volts if m.group("sign") == "-" else volts
-    return None
 
 
 # ------------------------------------------------------------------ reading the file

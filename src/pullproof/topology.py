@@ -19,6 +19,7 @@ from collections.abc import Callable
 from dataclasses import dataclass
 
 from .circuit import Circuit, Net, NetMember, Part
+from .supplies import RailTie
 
 __all__ = ["PinOnNet", "PullSite", "SetAside", "Topology", "find_pulls"]
 
@@ -41,7 +42,7 @@ _CONTROL_NAME = re.compile(r"(?i)^(G|B|GATE|BASE)\d*$")  # transistor pins that 
 _SHIELD_NAME = re.compile(r"(?i)(SHIELD|SHLD|^SH\d*$|CHASSIS|SH\d$)")
 
 Classify = Callable[[Part], str]
-RailOf = Callable[[Net], "tuple[str, bool] | None"]  # (rail name, is ground) or None
+RailOf = Callable[[Net], "RailTie | None"]
 
 
 @dataclass(frozen=True)
@@ -146,7 +147,7 @@ class _Scanner:
             rail, signal = (ra, nets[1]) if ra is not None else (rb, nets[0])
             assert rail is not None
             ups, downs = found.setdefault(signal.name, ([], []))
-            (downs if rail[1] else ups).append((part.ref, rail[0]))
+            (downs if rail.ground else ups).append((part.ref, rail.name))
         return found
 
     def gather(self, net: Net, exclude: set[str]) -> dict[str, list[PinOnNet]]:
