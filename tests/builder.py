@@ -86,6 +86,7 @@ class _Placed:
     uuid: str
     instances: dict[str, str]
     dnp: bool
+    on_board: bool = True
 
 
 @dataclass
@@ -116,8 +117,10 @@ class SchematicBuilder:
         instances: dict[str, str] | None = None,
         dnp: bool = False,
         power: str = "",
+        on_board: bool = True,
     ) -> SchematicBuilder:
-        """Place one unit of a part. ``power`` ("global"/"local") marks a power symbol library.
+        """Place one unit of a part. ``power`` ("global"/"local") marks a power symbol library;
+        ``on_board=False`` writes the part as excluded from the board.
 
         ``instances`` maps sheet-instance uuid paths to references (for sheets used twice).
         """
@@ -135,6 +138,7 @@ class SchematicBuilder:
                 str(_uuid.uuid4()),
                 dict(instances or {}),
                 dnp,
+                on_board,
             )
         )
         return self
@@ -283,7 +287,8 @@ class SchematicBuilder:
         dnp = " (dnp yes)" if p.dnp else (" (dnp no)" if self.version > V6 else "")
         return (
             f"(symbol (lib_id {_q(p.lib_id)}) (at {_mm(p.at[0])} {_mm(p.at[1])} {p.rot}){mirror}"
-            f" (unit {p.unit}) ({style} 1) (in_bom yes) (on_board yes){dnp}"
+            f" (unit {p.unit}) ({style} 1) (in_bom yes) (on_board {'yes' if p.on_board else 'no'})"
+            f"{dnp}"
             f" (uuid {_q(p.uuid)}){text}{inst})"
         )
 

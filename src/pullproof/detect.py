@@ -14,8 +14,9 @@ from collections.abc import Mapping
 from dataclasses import dataclass
 
 from .circuit import Circuit, Net, Part
+from .elements import Element
 from .errors import ValueParseError
-from .families.match import PartInfo, PartKind
+from .families.match import PartInfo, PartKind, ResistorInfo
 from .network import (
     CapacitorOnNet,
     Direction,
@@ -97,12 +98,26 @@ def _magnitude(value: Sourced | None) -> Sourced | None:
 class Resolver:
     """Resolve pull sites of one circuit with one set of rules and part data."""
 
-    def __init__(self, circuit: Circuit, infos: Mapping[str, PartInfo], rules: Rules) -> None:
+    def __init__(
+        self,
+        circuit: Circuit,
+        infos: Mapping[str, PartInfo],
+        rules: Rules,
+        elements: Mapping[str, Element] | None = None,
+    ) -> None:
         self.circuit = circuit
         self.infos = infos
         self.rules = rules
         self.nets = {n.name: n for n in circuit.nets}
         self.supplies = supply_nets(circuit)
+        self.elements: Mapping[str, Element] = elements or {}
+
+    def element(self, label: str) -> Element:
+        """The resistor a label names (``R3``, ``RN1 (1–8)``) as part and pins."""
+        return self.elements.get(label) or Element(label, ("1", "2"))
+
+    def resistor_info(self, label: str) -> ResistorInfo | None:
+        return self.infos[self.element(label).ref].resistor
 
     # ------------------------------------------------------------------ rails
     def rail_of(self, net: Net) -> RailSpec | None:
@@ -141,7 +156,7 @@ class Resolver:
     # ------------------------------------------------------------------ resistors
     def _resistor(self, refs: tuple[str, ...], missing: list[Missing]) -> PullResistor | None:
         """Combine parallel pulls into one record (worst tolerance, TCR and rating)."""
-        infos = [self.infos[r].resistor for r in refs]
+        infos = [self.resistor_info(r) for r in refs]
         if any(i is None or i.ohms is None for i in infos):
             for r, i in zip(refs, infos, strict=True):
                 if i is None or i.ohms is None:
@@ -169,7 +184,9 @@ class Resolver:
             if any(v is None for v in volts)
             else min((v for v in volts if v is not None), key=lambda s: s.magnitude("V"))
         )
-        return PullResistor(refs, ohms, tol, tcr, power, wv, size=first.size)
+        elements = tuple(self.element(r) for r in refs)
+        arrays = elements if any(e.array for e in elements) else ()
+        return PullResistor(refs, ohms, tol, tcr, power, wv, size=first.size, elements=arrays)
 
     # ------------------------------------------------------------------ inputs
     def _supply_of(self, part: Part) -> RailSpec | None:
@@ -193,7 +210,7 @@ class Resolver:
         missing: list[Missing] = list(info.missing)
         series = None
         if pin.via:
-            res = self.infos[pin.via].resistor
+            res = self.resistor_info(pin.via)
             series = res.ohms if res is not None else None
         model = info.inputs
         if model is not None and not any(

@@ -145,11 +145,19 @@ class Finding:
 
 @dataclass(frozen=True)
 class Skipped:
-    """A resistor tied to a rail that is deliberately not judged as a logic pull."""
+    """A resistor that is deliberately not judged as a logic pull (tied to a rail, between
+    supplies, or not fitted), with the reason."""
 
-    ref: str
+    ref: str  # the part's reference
     net: str
     reason: str
+    element: str = ""  # "1-8" for an element of a resistor array
+
+    @property
+    def label(self) -> str:
+        """How reports name it: ``R9``, or ``RN1 (1–8)``."""
+        a, _, b = self.element.partition("-")
+        return f"{self.ref} ({a}–{b})" if self.element else self.ref
 
 
 @dataclass(frozen=True)

@@ -34,6 +34,7 @@ from ..units import (
     parse_capacitance,
     parse_capacitor_text,
     parse_current,
+    parse_element_value,
     parse_percent,
     parse_power,
     parse_resistance,
@@ -411,8 +412,11 @@ def _resistor(part: Part, rules: Rules) -> tuple[ResistorInfo, tuple[Missing, ..
     missing: list[Missing] = []
     text: ResistorText | None = None
     value_src = Provenance(Origin.VALUE, f"Value of {part.ref}", Status.USER)
+    # A resistor array's Value names one element ("10k", "4x10k", or a part string with one
+    # resistance in it); a two-pin resistor's Value is read as written.
+    read = parse_element_value if len(part.pins) > 2 else parse_resistor_text
     try:
-        text = parse_resistor_text(part.value, field="Value", part=part.ref)
+        text = read(part.value, field="Value", part=part.ref)
     except ValueParseError as exc:
         missing.append(Missing(f"resistance of {part.ref}", part.ref, f"{exc}; write e.g. 4k7"))
     ohms = Sourced(text.ohms, value_src) if text else None

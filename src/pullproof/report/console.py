@@ -63,8 +63,8 @@ def review_table(result: ReviewResult) -> str:
             )
     if result.skipped:
         out.append("\nnot judged as logic pulls:\n")
-        for s in sorted(result.skipped, key=lambda s: s.ref):
-            out.append(f"  {s.ref:6} {s.net}: {s.reason}\n")
+        for s in sorted(result.skipped, key=lambda s: (s.ref, s.element)):
+            out.append(f"  {s.label:6} {s.net}: {s.reason}\n")
     counts: dict[str, int] = {}
     for r in result.networks:
         counts[r.verdict.value] = counts.get(r.verdict.value, 0) + 1

@@ -74,11 +74,12 @@ def _network(r: NetworkResult) -> dict[str, Any]:
         "rail_volts": [_num(n.rail.v_min, "V"), _num(n.rail.v_max, "V")],
         "resistors": [
             {
-                "ref": ref,
+                "ref": el.ref,
+                "element": el.element or None,
                 "value_ohms": _num(n.resistor.ohms, "ohm"),
                 "tolerance": _num(n.resistor.tolerance, ""),
             }
-            for ref in n.resistor.refs
+            for el in n.resistor.members
         ],
         "band_ohms": list(r.band),
         "inputs": [
@@ -127,8 +128,8 @@ def _finding(f: Finding) -> dict[str, Any]:
     }
 
 
-def _skipped(s: Skipped) -> dict[str, str]:
-    return {"ref": s.ref, "net": s.net, "reason": s.reason}
+def _skipped(s: Skipped) -> dict[str, str | None]:
+    return {"ref": s.ref, "element": s.element or None, "net": s.net, "reason": s.reason}
 
 
 def review_json(result: ReviewResult) -> dict[str, Any]:
