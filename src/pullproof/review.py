@@ -16,6 +16,7 @@ from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass, replace
 from pathlib import Path
 
+from .acceptance import apply_acceptances, read_acceptances
 from .circuit import Circuit, Part
 from .detect import Resolver, UnknownRail, enabled_internal_pull
 from .elements import library_pins
@@ -389,7 +390,7 @@ def review_circuit(
             )
         )
     files = tuple(sorted(circuit.files.items()))
-    return ReviewResult(
+    review_result = ReviewResult(
         root=circuit.root,
         networks=tuple(sorted(results, key=lambda r: r.network.net)),
         findings=tuple(findings),
@@ -397,6 +398,8 @@ def review_circuit(
         files=files,
         rules_file=rules.file or None,
     )
+    acceptances = read_acceptances(circuit, rules)
+    return apply_acceptances(review_result, acceptances, whole=not select.active)
 
 
 def _nominal_ohms(info: PartInfo) -> float | None:
