@@ -225,3 +225,27 @@ def test_cli_json_names_the_element(tmp_path: Path, capsys: pytest.CaptureFixtur
     elements = sorted((r["ref"], r["element"]) for n in doc["networks"] for r in n["resistors"])
     assert elements == [("RN1", "1-8"), ("RN1", "2-7"), ("RN2", "3-6"), ("RN3", "1-2"),
                         ("RN3", "1-3"), ("RN4", "1-4")]  # fmt: skip
+
+
+def test_an_acceptance_naming_the_array_covers_its_element(tmp_path: Path) -> None:
+    # RN2 (3–6) is marginal: its door contact's wetting current is assumed, not stated
+    root = _hive(tmp_path, elements_field="1-4,2-3")
+    (root.parent / "pullproof.toml").write_text(
+        '[[accept]]\nref = "RN2"\nkind = "marginal"\nreason = "the door reeds are gold contacts"\n',
+        encoding="utf-8",
+    )
+    door_c = next(n for n in review(root).networks if n.network.net == "/DOOR_C")
+    assert door_c.verdict.value == "marginal"
+    assert door_c.accepted is not None and door_c.accepted.holds
+
+
+def test_sarif_points_an_element_at_its_array_symbol(
+    tmp_path: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
+    root = _hive(tmp_path, elements_field="1-4,2-3")
+    sarif = tmp_path / "hive.sarif"
+    main(["review", str(root), "--sarif", str(sarif)])
+    capsys.readouterr()
+    log = json.loads(sarif.read_text(encoding="utf-8"))
+    (door_c,) = [r for r in log["runs"][0]["results"] if "/DOOR_C" in r["message"]["text"]]
+    assert door_c["locations"][0]["logicalLocations"][0]["name"] == "RN2"

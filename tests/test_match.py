@@ -128,10 +128,11 @@ def test_resistor_from_value_and_footprint() -> None:
     # 0603 → 0.1 W / 50 V, generic chip table (REFERENCES §6: common practice)
     assert info.power is not None and info.power.magnitude("W") == 0.1
     assert info.working_voltage is not None and info.working_voltage.magnitude("V") == 50.0
-    assert info.power.source.origin is Origin.DEFAULT
-    # no Tolerance field and none in the Value: the rules default (E24, 5 %)
+    # a size's generic rating stands in for the fitted part's: an assumption
+    assert info.power.source.origin is Origin.ASSUMED
+    # no Tolerance field and none in the Value: the rules default (E24, 5 %), assumed
     assert info.tolerance.magnitude("") == 0.05
-    assert info.tolerance.source.origin is Origin.DEFAULT
+    assert info.tolerance.source.origin is Origin.ASSUMED
 
 
 def test_tolerance_field_beats_value_text() -> None:
@@ -209,7 +210,7 @@ def test_example_part_library() -> None:
 def test_switch_defaults_are_marked() -> None:
     info = resolve_part(_part("SW1", "SW_Push", "Switch:SW_Push"), PartLibrary(), RULES)
     wet = info.ratings.get("wetting")
-    assert wet is not None and wet.source.origin is Origin.DEFAULT and wet.source.reason
+    assert wet is not None and wet.source.origin is Origin.ASSUMED and wet.source.reason
     info = resolve_part(
         _part("SW2", "SW_Push", "Switch:SW_Push", **{"pullproof.wetting": "1mA"}),
         PartLibrary(),

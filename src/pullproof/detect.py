@@ -54,8 +54,9 @@ class UnknownRail:
     refs: tuple[str, ...]
 
 
-def _default(value: object, name: str, reason: str, status: Status = Status.DEFAULT) -> Sourced:
-    return Sourced(value, Provenance(Origin.DEFAULT, name, status, reason))
+def _assumed(value: object, name: str, reason: str, status: Status = Status.DEFAULT) -> Sourced:
+    """A driver rating the part does not state: a limit resting on it is soft."""
+    return Sourced(value, Provenance(Origin.ASSUMED, name, status, reason))
 
 
 def _derived(value: object, where: str) -> Sourced:
@@ -75,12 +76,12 @@ def enabled_internal_pull(part: Part) -> tuple[tuple[Sourced, Sourced], Directio
         ValueParseError: the field cannot be read.
     """
     text = part.field("pullproof.internal_pull")
-    if text is None:
+    if text is None or text.strip().lower() == "none":  # "none": the pin has no internal pull
         return None
     m = _PULL_RANGE.match(text)
     if m is None:
         raise ValueParseError(
-            text, expected="[up|down] MIN..MAX, e.g. up 30k..50k",
+            text, expected="[up|down] MIN..MAX, e.g. up 30k..50k, or none",
             field="pullproof.internal_pull", part=part.ref,
         )  # fmt: skip
     where = Provenance(Origin.FIELD, f"field 'pullproof.internal_pull' on {part.ref}", Status.USER)
@@ -301,17 +302,17 @@ class Resolver:
                 vce_sat=r.get("vce_sat"),
             )  # fmt: skip
         if info.kind is PartKind.TRANSISTOR:
-            i_ol = fields["i_ol"] or _default(
-                _TRANSISTOR_SINK[0], "default transistor sink current", "small-signal "
+            i_ol = fields["i_ol"] or _assumed(
+                _TRANSISTOR_SINK[0], "assumed transistor sink current", "small-signal "
                 "transistors sink far more than a pull draws", Status.COMMON_PRACTICE
             )  # fmt: skip
-            v_ol = fields["v_ol"] or _default(
-                _TRANSISTOR_SINK[1], "default transistor saturation voltage",
+            v_ol = fields["v_ol"] or _assumed(
+                _TRANSISTOR_SINK[1], "assumed transistor saturation voltage",
                 "small-signal saturation is below 0.4 V at these currents",
                 Status.COMMON_PRACTICE,
             )  # fmt: skip
-            i_off = fields["i_off"] or _default(
-                _TRANSISTOR_LEAK, "default transistor off-state leakage",
+            i_off = fields["i_off"] or _assumed(
+                _TRANSISTOR_LEAK, "assumed transistor off-state leakage",
                 "small-signal transistors leak well under 1 µA when off", Status.COMMON_PRACTICE,
             )  # fmt: skip
             return DriverOnNet(pin.ref, pin.pin, "transistor", i_ol, v_ol, i_off)

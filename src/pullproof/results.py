@@ -138,6 +138,7 @@ class Bound:
     relax: str = ""  # what would relax this bound, for empty-window advice
     corner: str = ""  # which corner was worst, e.g. "VCC = 4.5 V, 85 °C"
     missing: tuple[Missing, ...] = ()
+    assumed: tuple[str, ...] = ()  # assumed values it rests on (then it is soft)
 
     @property
     def evaluated(self) -> bool:
@@ -159,6 +160,7 @@ class Check:
     source: str = ""
     explanation: str = ""
     missing: tuple[Missing, ...] = ()
+    assumed: tuple[str, ...] = ()  # assumed values it rests on (then it is soft)
 
 
 @dataclass(frozen=True)

@@ -37,7 +37,7 @@ from .results import Finding, NetworkResult, ReviewResult, Skipped, Verdict
 from .rules import RULES_FILE, Rules, load_rules
 from .schematic.hierarchy import Hierarchy, load_hierarchy
 from .schematic.model import LibPin
-from .topology import PullSite, find_pulls
+from .topology import PinOnNet, PullSite, find_pulls
 from .units import Q_
 
 __all__ = ["PARTS_FILE", "Selection", "parse_ref_list", "review"]
@@ -368,27 +368,7 @@ def review_circuit(
         refs = tuple(sorted({p.ref for p in (*switches, *inputs)}))
         if not chosen(refs) or any(_has_internal_pull(circuit, p.ref) for p in inputs):
             continue
-        sw = ", ".join(sorted({p.ref for p in switches}))
-        ins = ", ".join(f"{p.ref} pin {p.name or p.pin}" for p in inputs)
-        # A microcontroller pin may have its internal pull enabled by firmware, which the
-        # schematic cannot show: flag it for confirmation rather than as a certain failure.
-        mcu = all(infos[p.ref].kind is PartKind.MCU for p in inputs)
-        tail = (
-            "; if firmware enables the pin's internal pull, record it with field "
-            "'pullproof.internal_pull' on the part"
-            if mcu
-            else ""
-        )
-        findings.append(
-            Finding(
-                "floating-input",
-                Verdict.MARGINAL if mcu else Verdict.FAIL,
-                net.name,
-                refs,
-                f"{ins} is driven only by {sw} and has no pull: it floats while the contact "
-                f"is open{tail}",
-            )
-        )
+        findings.append(_floating(net.name, refs, switches, inputs, infos))
     files = tuple(sorted(circuit.files.items()))
     review_result = ReviewResult(
         root=circuit.root,
@@ -400,6 +380,30 @@ def review_circuit(
     )
     acceptances = read_acceptances(circuit, rules)
     return apply_acceptances(review_result, acceptances, whole=not select.active)
+
+
+def _floating(
+    net: str,
+    refs: tuple[str, ...],
+    switches: Sequence[PinOnNet],
+    inputs: Sequence[PinOnNet],
+    infos: Mapping[str, PartInfo],
+) -> Finding:
+    """A switch-driven input with no pull. It fails only when the part data say the pin
+    has no internal pull; otherwise many such pins have one (a microcontroller's, which
+    firmware enables), so it is marginal until the designer confirms it."""
+    sw = ", ".join(sorted({p.ref for p in switches}))
+    ins = ", ".join(f"{p.ref} pin {p.name or p.pin}" for p in inputs)
+    text = f"{ins} is driven only by {sw} and has no pull: it floats while the contact is open"
+    says_none = [infos[p.ref].no_internal_pull for p in inputs]
+    if all(says_none):
+        return Finding("floating-input", Verdict.FAIL, net, refs, f"{text}, and {says_none[0]}")
+    hint = (
+        "; many such pins have an internal pull: confirm it and record field "
+        "'pullproof.internal_pull' (e.g. up 30k..50k, or none) on the part, or internal_pull "
+        "in its part-library entry"
+    )
+    return Finding("floating-input", Verdict.MARGINAL, net, refs, text + hint)
 
 
 def _nominal_ohms(info: PartInfo) -> float | None:

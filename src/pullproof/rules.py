@@ -45,11 +45,17 @@ RULES_FILE = "pullproof.toml"
 
 @dataclass(frozen=True)
 class Key:
-    """One rules key: how to read it, its default text (or None) and why that default."""
+    """One rules key: how to read it, its default text (or None) and why that default.
+
+    ``assumed`` marks a default that stands in for a property of the fitted parts or the
+    wiring (a resistor's tolerance, the bus capacitance) rather than a project choice: a
+    limit resting on it is soft (see :mod:`pullproof.assumed`).
+    """
 
     kind: str
     default: str | None
     reason: str
+    assumed: bool = False
 
 
 # Every key of the rules file. The README table is generated from this mapping.
@@ -71,8 +77,12 @@ KEYS: Mapping[str, Key] = MappingProxyType(
             "names designers give mains conductors (not logic nets such as MAINS_OK)",
         ),
         "ground": Key("patterns", "", "extra ground net names beyond the built-in ones"),
-        "resistor.tolerance": Key("percent", "5%", "E24 customary tolerance (IEC 60063)"),
-        "resistor.tcr": Key("tcr", "200ppm/K", "thick-film chip resistors, common practice"),
+        "resistor.tolerance": Key(
+            "percent", "5%", "E24 customary tolerance (IEC 60063)", assumed=True
+        ),
+        "resistor.tcr": Key(
+            "tcr", "200ppm/K", "thick-film chip resistors, common practice", assumed=True
+        ),
         "resistor.power": Key("power", None, "taken from the footprint size when known"),
         "resistor.size": Key("size", None, "taken from the footprint when known"),
         "temperature.min": Key("temperature", "0°C", "commercial range, common practice"),
@@ -82,7 +92,10 @@ KEYS: Mapping[str, Key] = MappingProxyType(
         "preferred.max": Key("resistance", "1M", "above 1 MΩ leakage and noise dominate"),
         "i2c.mode": Key("i2c", "", "no I2C unless a [[net]] entry or a net name says so"),
         "i2c.bus_capacitance": Key(
-            "capacitance", "100pF", "a short bus on one board: a few 10 pF pins plus traces"
+            "capacitance",
+            "100pF",
+            "a short bus on one board: a few 10 pF pins plus traces",
+            assumed=True,
         ),
     }
 )
@@ -363,7 +376,8 @@ def _build(reader: _Reader | None, doc: Mapping[str, Any]) -> Rules:
         else:
             parsed = default_reader.value(dotted, key.kind, key.default)
             if isinstance(parsed, Sourced):
-                src = Provenance(Origin.DEFAULT, f"default {dotted}", Status.DEFAULT, key.reason)
+                origin = Origin.ASSUMED if key.assumed else Origin.DEFAULT
+                src = Provenance(origin, f"default {dotted}", Status.DEFAULT, key.reason)
                 parsed = Sourced(parsed.value, src)
             values[dotted] = parsed
     rails = _rails(reader, flat.get("rails", {}), values)

@@ -90,7 +90,7 @@ FIELDS: Mapping[str, FieldDoc] = MappingProxyType(
         "pullproof.i_low": FieldDoc("logic input", "current out of a pin held low", "0.4mA"),
         "pullproof.v_in_max": FieldDoc("logic input", "highest voltage the pin tolerates", "5.5V"),
         "pullproof.internal_pull": FieldDoc(
-            "MCU", "internal pull firmware enables: [up|down] min..max", "up 30k..50k"
+            "MCU", "internal pull firmware enables: [up|down] min..max, or none", "up 30k..50k"
         ),
         "pullproof.contact_max": FieldDoc("switch, relay", "largest contact current", "50mA"),
         "pullproof.wetting": FieldDoc("switch, relay", "least contact (wetting) current", "1mA"),
@@ -231,6 +231,7 @@ class LibraryEntry:
     schmitt: bool
     internal_pull: tuple[Sourced, Sourced] | None
     ratings: Mapping[str, Sourced]
+    no_internal_pull: bool = False  # the entry says internal_pull = "none"
 
 
 @dataclass(frozen=True)
@@ -330,11 +331,15 @@ def load_part_library(path: Path) -> PartLibrary:
             if key in table
         }
         pull = None
-        if "internal_pull" in table:
+        no_pull = str(table.get("internal_pull", "")).strip().lower() == "none"
+        if "internal_pull" in table and not no_pull:
             span = table["internal_pull"]
             if not (isinstance(span, list) and len(span) == 2):
                 raise ValueParseError(
-                    str(span), expected='a range ["30k", "50k"]', field="internal_pull", part=part
+                    str(span),
+                    expected='a range ["30k", "50k"] or "none"',
+                    field="internal_pull",
+                    part=part,
                 )
             lo, hi = (parse_resistance(str(t), field="internal_pull", part=part) for t in span)
             if lo > hi:
@@ -357,6 +362,7 @@ def load_part_library(path: Path) -> PartLibrary:
                 schmitt=schmitt,
                 internal_pull=pull,
                 ratings=MappingProxyType(ratings),
+                no_internal_pull=no_pull,
             )
         )
     return PartLibrary(tuple(entries))
@@ -398,6 +404,8 @@ class PartInfo:
     resistor: ResistorInfo | None = None
     ratings: Ratings = Ratings()
     missing: tuple[Missing, ...] = ()
+    # why the part's data say its inputs have no internal pull ("" when they do not say)
+    no_internal_pull: str = ""
 
 
 def _field_source(part: Part, name: str) -> Provenance:
@@ -412,7 +420,9 @@ def _read_field(part: Part, name: str, reader: Callable[..., Any]) -> Sourced | 
 
 
 def _default(value: Any, name: str, reason: str, status: Status = Status.DEFAULT) -> Sourced:
-    return Sourced(value, Provenance(Origin.DEFAULT, f"default {name}", status, reason))
+    """A rating the part does not state, assumed from its kind or size: a limit resting on it
+    is soft (see :mod:`pullproof.assumed`)."""
+    return Sourced(value, Provenance(Origin.ASSUMED, f"assumed {name}", status, reason))
 
 
 def _resistor(part: Part, rules: Rules) -> tuple[ResistorInfo, tuple[Missing, ...]]:
@@ -575,7 +585,22 @@ def resolve_part(part: Part, library: PartLibrary, rules: Rules) -> PartInfo:
         overrides = _overrides(part)
         if overrides:
             model = model.with_overrides(overrides)
-    return PartInfo(part.ref, kind, name, model, pins, None, ratings, tuple(missing))
+    none = _no_internal_pull(part, entry, name if model is not None else "")
+    return PartInfo(part.ref, kind, name, model, pins, None, ratings, tuple(missing), none)
+
+
+def _no_internal_pull(part: Part, entry: LibraryEntry | None, model_name: str) -> str:
+    """Why the data say the part's inputs have no internal pull, or "" when they do not say:
+    the field or a part-library entry says ``none``, or the inputs follow a built-in logic
+    family (standard logic inputs have no pull; their family tables list none)."""
+    text = part.field("pullproof.internal_pull")
+    if text is not None and text.strip().lower() == "none":
+        return f"field 'pullproof.internal_pull' on {part.ref} says the pin has none"
+    if entry is not None and entry.no_internal_pull:
+        return f"part library entry {entry.name} says the pin has none (internal_pull = none)"
+    if model_name in load_families() and (entry is None or entry.internal_pull is None):
+        return f"{model_name} logic inputs have no internal pull (its family data)"
+    return ""
 
 
 def _input_model(

@@ -78,6 +78,7 @@ def _limit(item: Bound | Check, **own: Any) -> dict[str, Any]:
         "source": item.source,
         "terms": [_term(t) for t in item.terms],
         "missing": [_missing(m) for m in item.missing],
+        "assumed": list(item.assumed),
     }
 
 
