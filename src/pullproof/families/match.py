@@ -81,6 +81,11 @@ FIELDS: Mapping[str, FieldDoc] = MappingProxyType(
             "resistor", "chip size read from the footprint name", "R_0603_1608Metric"
         ),
         "pullproof.role": FieldDoc("resistor", "force (pull) or skip (skip) judging", "skip"),
+        "pullproof.elements": FieldDoc(
+            "resistor array",
+            "which pins form each element: pin pairs, or common=PIN",
+            "1-8,2-7,3-6,4-5",
+        ),
         "pullproof.working_voltage": FieldDoc("resistor", "limiting element voltage", "50V"),
         "pullproof.family": FieldDoc("logic IC", "logic family by name", "HC"),
         "pullproof.schmitt": FieldDoc("logic IC", "inputs are Schmitt triggers", "yes"),
