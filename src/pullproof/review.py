@@ -308,15 +308,15 @@ def review_circuit(
         named = ", ".join(sorted(select.refs)[:5]) + (", …" if len(select.refs) > 5 else "")
         raise SelectionError(f"--ref: no part {named} in the schematic")
     infos = {p.ref: resolve_part(p, library, rules) for p in circuit.parts}
-    probe = Resolver(circuit, infos, rules)
+    resolver = Resolver(circuit, infos, rules)
     topo = find_pulls(
         circuit,
         lambda p: _kind_word(infos[p.ref]),
-        probe.rail_key,
+        resolver.rail_key,
         library_pins=pins,
         ohms=lambda ref: _nominal_ohms(infos[ref]),
     )
-    resolver = Resolver(circuit, infos, rules, topo.elements)
+    resolver.elements = topo.elements  # topology names the array elements it found
 
     def chosen(refs: Iterable[str]) -> bool:
         if not select.active:

@@ -56,6 +56,8 @@ _CONTROL_NAME = re.compile(r"(?i)^(G|B|GATE|BASE)\d*$")  # transistor pins that 
 LOW_OHMS = 10.0
 
 Classify = Callable[[Part], str]
+# pulls by signal net: (ups, downs), each a list of (element, the rail it ties to)
+Pulls = dict[str, tuple[list[tuple[Element, RailTie]], list[tuple[Element, RailTie]]]]
 RailOf = Callable[[Net], "RailTie | None"]
 Ohms = Callable[[str], "float | None"]  # a resistor part's nominal resistance, None if unknown
 
@@ -172,74 +174,6 @@ class _Scanner:
         net = self.nets.get(name)
         return net is not None and self.rail(net) is not None
 
-    # ------------------------------------------------------------------ the resistors
-    def scan(
-        self,
-    ) -> tuple[dict[str, tuple[list[tuple[Element, RailTie]], list[tuple[Element, RailTie]]]],
-               list[SetAside], list[tuple[Element, str]]]:  # fmt: skip
-        """Pulls by signal net; resistors set aside on sight; elements not fitted."""
-        found: dict[str, tuple[list[tuple[Element, RailTie]], list[tuple[Element, RailTie]]]] = {}
-        aside: list[SetAside] = []
-        unfitted: list[tuple[Element, str]] = []
-        for ref, lay in self.layouts.items():
-            if self.kind(ref) != "resistor":
-                continue
-            if lay.problem:
-                part = self.circuit.part(ref)
-                pins = part.pins if part is not None else ()
-                nets = [n for p in pins if (n := self.circuit.net_of(ref, p.number)) is not None]
-                if any(self.rail(n) is not None for n in nets):
-                    aside.append(SetAside(ref, nets[0].name, f"resistor array: {lay.problem}"))
-                continue
-            for el in lay.elements:
-                na = self.circuit.net_of(ref, el.pins[0])
-                nb = self.circuit.net_of(ref, el.pins[1])
-                if na is None or nb is None:
-                    continue
-                if ref in self.unfitted:
-                    unfitted.append((el, self.unfitted[ref]))
-                    continue
-                if na.name == nb.name:
-                    continue  # both ends on one net: it carries nothing
-                ta, tb = self.rail(na), self.rail(nb)
-                if ta is not None and tb is not None:
-                    aside.append(self._between_rails(el, (na, ta), (nb, tb)))
-                    continue
-                if ta is None and tb is None:
-                    continue  # a series resistor
-                rail, signal = (ta, nb) if ta is not None else (tb, na)
-                assert rail is not None
-                low = self._low(el)
-                if low:
-                    aside.append(_aside(el, signal.name, low))
-                    continue
-                ups, downs = found.setdefault(signal.name, ([], []))
-                (downs if rail.ground else ups).append((el, rail))
-        return found, aside, unfitted
-
-    def _low(self, el: Element) -> str:
-        ohms = self.ohms(el.ref)
-        if ohms is None or ohms >= LOW_OHMS:
-            return ""
-        return (
-            f"below 10 Ω ({ohms:g} Ω): a link, shunt, current-sense or filter resistor in a "
-            "supply or sense path, not a logic pull"
-        )
-
-    def _between_rails(
-        self, el: Element, a: tuple[Net, RailTie], b: tuple[Net, RailTie]
-    ) -> SetAside:
-        """A resistor joining two supply nets: a link, shunt, filter, load or bleed."""
-        (na, ta), (_, tb) = sorted((a, b), key=lambda x: (x[1].ground, x[1].certain))
-        low = self._low(el)
-        if low:
-            return _aside(el, na.name, f"{low} (between {ta.name} and {tb.name})")
-        if tb.ground:
-            return _aside(el, na.name, f"load or bleed resistor: it joins supply {ta.name} to "
-                                       f"ground ({tb.name}), not a signal")  # fmt: skip
-        return _aside(el, na.name, f"link, shunt or filter between supply nets {ta.name} and "
-                                   f"{tb.name}, not a signal")  # fmt: skip
-
     # ------------------------------------------------------------------ the neighbours
     def neighbours(
         self, net: Net, exclude: set[tuple[str, str]], pulls: tuple[str, ...], has_both: bool
@@ -317,6 +251,73 @@ class _Scanner:
         return "other", pin
 
 
+def _scan_resistors(self: _Scanner) -> tuple[Pulls, list[SetAside], list[tuple[Element, str]]]:
+    """Pulls by signal net; resistors set aside on sight; elements not fitted."""
+    found: Pulls = {}
+    aside: list[SetAside] = []
+    unfitted: list[tuple[Element, str]] = []
+    for ref, lay in self.layouts.items():
+        if self.kind(ref) != "resistor":
+            continue
+        if lay.problem:
+            part = self.circuit.part(ref)
+            pins = part.pins if part is not None else ()
+            nets = [n for p in pins if (n := self.circuit.net_of(ref, p.number)) is not None]
+            if any(self.rail(n) is not None for n in nets):
+                aside.append(SetAside(ref, nets[0].name, f"resistor array: {lay.problem}"))
+            continue
+        for el in lay.elements:
+            na = self.circuit.net_of(ref, el.pins[0])
+            nb = self.circuit.net_of(ref, el.pins[1])
+            if na is None or nb is None:
+                continue
+            if ref in self.unfitted:
+                unfitted.append((el, self.unfitted[ref]))
+                continue
+            if na.name == nb.name:
+                continue  # both ends on one net: it carries nothing
+            ta, tb = self.rail(na), self.rail(nb)
+            if ta is not None and tb is not None:
+                aside.append(_between_rails(self, el, (na, ta), (nb, tb)))
+                continue
+            if ta is None and tb is None:
+                continue  # a series resistor
+            rail, signal = (ta, nb) if ta is not None else (tb, na)
+            assert rail is not None
+            low = _low(self, el)
+            if low:
+                aside.append(_aside(el, signal.name, low))
+                continue
+            ups, downs = found.setdefault(signal.name, ([], []))
+            (downs if rail.ground else ups).append((el, rail))
+    return found, aside, unfitted
+
+
+def _low(self: _Scanner, el: Element) -> str:
+    ohms = self.ohms(el.ref)
+    if ohms is None or ohms >= LOW_OHMS:
+        return ""
+    return (
+        f"below 10 Ω ({ohms:g} Ω): a link, shunt, current-sense or filter resistor in a "
+        "supply or sense path, not a logic pull"
+    )
+
+
+def _between_rails(
+    self: _Scanner, el: Element, a: tuple[Net, RailTie], b: tuple[Net, RailTie]
+) -> SetAside:
+    """A resistor joining two supply nets: a link, shunt, filter, load or bleed."""
+    (na, ta), (_, tb) = sorted((a, b), key=lambda x: (x[1].ground, x[1].certain))
+    low = _low(self, el)
+    if low:
+        return _aside(el, na.name, f"{low} (between {ta.name} and {tb.name})")
+    if tb.ground:
+        return _aside(el, na.name, f"load or bleed resistor: it joins supply {ta.name} to "
+                                   f"ground ({tb.name}), not a signal")  # fmt: skip
+    return _aside(el, na.name, f"link, shunt or filter between supply nets {ta.name} and "
+                               f"{tb.name}, not a signal")  # fmt: skip
+
+
 def _role(part: Part | None) -> str:
     return ((part.field("pullproof.role") if part is not None else None) or "").lower()
 
@@ -339,7 +340,7 @@ def find_pulls(
         ValueParseError: a field ``pullproof.elements`` cannot be read.
     """
     scan = _Scanner(circuit, classify, rail_of, library_pins or {}, ohms or (lambda ref: None))
-    found, aside, unfitted = scan.scan()
+    found, aside, unfitted = _scan_resistors(scan)
     sites: list[PullSite] = []
     for name, (ups, downs) in sorted(found.items()):
         net = scan.nets[name]
@@ -403,7 +404,7 @@ def find_pulls(
 def _not_fitted(
     scan: _Scanner,
     unfitted: list[tuple[Element, str]],
-    found: Mapping[str, tuple[list[tuple[Element, RailTie]], list[tuple[Element, RailTie]]]],
+    found: Pulls,
 ) -> list[SetAside]:
     """Every element of a part that is not fitted, with what it would be if it were."""
     out = []
