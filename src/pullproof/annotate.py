@@ -25,7 +25,7 @@ from .circuit import Circuit
 from .errors import PullproofError, SourceText
 from .eseries import format_rkm
 from .nets import circuit_from_hierarchy, natural_key
-from .results import NetworkResult, ReviewResult, Verdict
+from .results import Basis, NetworkResult, ReviewResult, Verdict
 from .review import Selection, review
 from .schematic.hierarchy import Hierarchy, load_hierarchy
 from .schematic.reader import read_text
@@ -153,8 +153,10 @@ def _fields(result: NetworkResult, stamp: str) -> tuple[tuple[str, str], ...]:
     window = window_text(result.window)
     if result.verdict is Verdict.INCOMPLETE:  # limits that need a missing value are not in it
         window += " (partial)"
+    # a verdict resting on an assumption says so wherever it goes
+    verdict = result.verdict.value + (" (assumed)" if result.basis is Basis.ASSUMED else "")
     return (
-        ("pullproof.verdict", result.verdict.value),
+        ("pullproof.verdict", verdict),
         ("pullproof.window", window),
         ("pullproof.recommended", pick),
         ("pullproof.reason", reason),
@@ -414,12 +416,13 @@ def plan_annotation(
     parts: Sequence[str | os.PathLike[str]] = (),
     select: Selection | None = None,
     today: _dt.date | None = None,
+    assume: str | None = None,
 ) -> AnnotationPlan:
     """Review ``root`` and work out every file's annotated text; nothing is written.
 
     Args:
         root: the root schematic file.
-        rules, parts, select: as for :func:`pullproof.review.review`.
+        rules, parts, select, assume: as for :func:`pullproof.review.review`.
         today: the date in ``pullproof.reviewed`` (default: today).
 
     Raises:
@@ -431,7 +434,7 @@ def plan_annotation(
     hier = load_hierarchy(root)
     circuit = circuit_from_hierarchy(hier, os.fspath(root))
     result = review(root, rules=rules, parts=parts, select=select, circuit=circuit,
-                    hierarchy=hier)  # fmt: skip
+                    hierarchy=hier, assume=assume)  # fmt: skip
     stamp = f"pullproof {__version__}, {(today or _dt.date.today()).isoformat()}"
     targets = _targets(circuit, result, select, stamp)
     by_file: dict[str, list[_Target]] = {}

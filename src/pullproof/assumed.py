@@ -14,13 +14,14 @@ limit the band crosses but the nominal value meets cannot fail the network on it
 
 from __future__ import annotations
 
+from collections.abc import Iterable
 from dataclasses import replace
 
 from .network import PullResistor
-from .provenance import Origin, Sourced
-from .results import Bound, BoundKind, Check
+from .provenance import Origin, Sourced, Stands
+from .results import Assumption, Bound, BoundKind, Check
 
-__all__ = ["assumed_band", "nominal_meets", "soften"]
+__all__ = ["assumed_band", "assumptions_of", "counted", "nominal_meets", "soften"]
 
 
 def _assumed(values: list[Sourced]) -> tuple[str, ...]:
@@ -55,3 +56,38 @@ def nominal_meets(bound: Bound, ohms: float) -> bool:
     if bound.ohms is None:
         return True
     return ohms >= bound.ohms if bound.kind is BoundKind.MIN else ohms <= bound.ohms
+
+
+def counted(bound: Bound) -> bool:
+    """Whether a bound sets the window: a hard one, or one resting on an assumed value (it
+    sets the window as the assumption has it, but a violation is marginal, never a fail)."""
+    return bound.hard or bool(bound.assumed)
+
+
+def _assumption(value: Sourced) -> Assumption:
+    src = value.source
+    st = src.stands or Stands("", "", src.where, "", "default", src.reason)
+    return Assumption(st.part, st.pin, st.quantity, value, st.text, st.basis, st.fix)
+
+
+def assumptions_of(
+    items: Iterable[Bound | Check], resistor: PullResistor, extra: Iterable[Sourced] = ()
+) -> tuple[Assumption, ...]:
+    """Every assumed number a verdict rests on, once each: the terms of its evaluated limits
+    and checks, the fitted band's tolerance and TCR when a limit was evaluated, and
+    ``extra`` (assumptions no term shows, such as an input's supply following the rail)."""
+    values: list[Sourced] = list(extra)
+    evaluated = False
+    for item in items:
+        if (item.ohms is None) if isinstance(item, Bound) else (item.ok is None):
+            continue
+        evaluated = True
+        values.extend(t.value for t in item.terms)
+    if evaluated:
+        values.extend((resistor.tolerance, resistor.tcr))
+    out: dict[tuple[str, str, str, str], Assumption] = {}
+    for v in values:
+        if v.source.origin is Origin.ASSUMED:
+            a = _assumption(v)
+            out.setdefault(a.key, a)
+    return tuple(out.values())

@@ -64,14 +64,18 @@ def _review_from(args: argparse.Namespace, circuit: Circuit | None = None) -> Re
         refs=parse_ref_list(args.ref) if args.ref else None,
         where=parse_where(args.where or ()),
     )
+    assume = "none" if getattr(args, "strict", False) else None
     result = review(
-        args.root, rules=args.rules, parts=args.parts or (), select=select, circuit=circuit
-    )
+        args.root, rules=args.rules, parts=args.parts or (), select=select, circuit=circuit,
+        assume=assume,
+    )  # fmt: skip
     against = getattr(args, "against", None)
     if against:
         # The older revision is judged by the same explicit --rules/--parts when given, else
         # by the files beside it, as they were in that revision.
-        old = review(against, rules=args.rules, parts=args.parts or (), select=select)
+        old = review(
+            against, rules=args.rules, parts=args.parts or (), select=select, assume=assume
+        )
         result = replace(result, changes=compare_reviews(result, old))
     return result
 
@@ -94,7 +98,16 @@ def _cmd_review(args: argparse.Namespace) -> int:
         print(json.dumps(review_json(result), indent=1, ensure_ascii=False))
     else:
         print(review_table(result), end="")
-    return EXIT_FINDINGS if result.gate.rank >= _FAIL_ON[args.fail_on] else 0
+    return EXIT_FINDINGS if _gate_fails(result, args) else 0
+
+
+def _gate_fails(result: ReviewResult, args: argparse.Namespace) -> bool:
+    """``--fail-on``: a result that counts is at least this bad (an assumed verdict counts
+    as its verdict; it is never a fail). ``--require-data``: a result that counts rests on
+    an assumed value."""
+    return result.gate.rank >= _FAIL_ON[args.fail_on] or (
+        bool(args.require_data) and result.assumed > 0
+    )
 
 
 def _cmd_gate(args: argparse.Namespace) -> int:
@@ -108,11 +121,12 @@ def _cmd_gate(args: argparse.Namespace) -> int:
     code = 0
     for root in roots:
         one = argparse.Namespace(
-            root=str(root), rules=args.rules, parts=args.parts, ref=None, where=None
-        )
+            root=str(root), rules=args.rules, parts=args.parts, ref=None, where=None,
+            strict=args.strict,
+        )  # fmt: skip
         result = _review_from(one)
         print(review_table(result), end="\n")
-        if result.gate.rank >= _FAIL_ON[args.fail_on]:
+        if _gate_fails(result, args):
             code = EXIT_FINDINGS
     return code
 
@@ -153,11 +167,59 @@ def _cmd_annotate(args: argparse.Namespace) -> int:
         refs=parse_ref_list(args.ref) if args.ref else None,
         where=parse_where(args.where or ()),
     )
-    plan = plan_annotation(args.root, rules=args.rules, parts=args.parts or (), select=select)
+    plan = plan_annotation(
+        args.root, rules=args.rules, parts=args.parts or (), select=select,
+        assume="none" if args.strict else None,
+    )  # fmt: skip
     if args.write:
         apply_annotation(plan)
     print(format_plan(plan, written=args.write), end="")
     return 0
+
+
+def _cmd_parts(args: argparse.Namespace) -> int:
+    from pathlib import Path
+
+    from .nets import build_circuit
+    from .partdata import needs_of
+    from .report.parts_out import parts_listing, write_skeleton
+    from .review import load_library
+
+    circuit = build_circuit(args.root)
+    result = _review_from(args, circuit)
+    library = load_library(Path(args.root), [Path(p) for p in args.parts or ()])
+    needs = needs_of(result, circuit, library)
+    print(parts_listing(needs), end="")
+    if args.write:
+        write_skeleton(needs, args.write, force=args.force, inputs=result.inputs, root=args.root)
+        print(f"wrote the part-library skeleton {args.write} ({len(needs.entries)} parts)")
+    return 0
+
+
+def _strict_option(p: argparse.ArgumentParser) -> None:
+    p.add_argument(
+        "--strict",
+        action="store_true",
+        help="assume nothing: inputs, rails and drivers without data stay incomplete "
+        '(as with assume = "none" in the rules)',
+    )
+
+
+def _gate_options(p: argparse.ArgumentParser) -> None:
+    p.add_argument(
+        "--fail-on",
+        choices=sorted(_FAIL_ON, key=_FAIL_ON.__getitem__),
+        default="fail",
+        help="exit 1 when any verdict or finding that is not accepted is at least this bad "
+        "(default: fail; a verdict resting on an assumption counts as its verdict and is "
+        "never a fail)",
+    )
+    p.add_argument(
+        "--require-data",
+        action="store_true",
+        help="also exit 1 while any verdict or finding that is not accepted rests on an "
+        "assumed value",
+    )
 
 
 def _selection_options(p: argparse.ArgumentParser) -> None:
@@ -178,6 +240,7 @@ def _selection_options(p: argparse.ArgumentParser) -> None:
         action="append",
         help="judge only resistors whose FIELD matches VALUE (glob); may repeat",
     )
+    _strict_option(p)
 
 
 def _against_option(p: argparse.ArgumentParser) -> None:
@@ -208,14 +271,8 @@ def _build_parser() -> argparse.ArgumentParser:
     p = sub.add_parser("review", help="judge every pull-up and pull-down resistor")
     _selection_options(p)
     _against_option(p)
-    p.add_argument("--json", action="store_true", help="print the pullproof.review/1 JSON document")
-    p.add_argument(
-        "--fail-on",
-        choices=sorted(_FAIL_ON, key=_FAIL_ON.__getitem__),
-        default="fail",
-        help="exit 1 when any verdict or finding that is not accepted is at least this bad "
-        "(default: fail)",
-    )
+    p.add_argument("--json", action="store_true", help="print the pullproof.review/2 JSON document")
+    _gate_options(p)
     p.add_argument(
         "--sarif",
         metavar="FILE",
@@ -230,12 +287,8 @@ def _build_parser() -> argparse.ArgumentParser:
     p.add_argument("files", nargs="*", metavar="FILE", help="changed files (.kicad_sch)")
     p.add_argument("--rules", metavar="FILE", help="rules file (default: beside each root)")
     p.add_argument("--parts", metavar="FILE", action="append", help="part-library file")
-    p.add_argument(
-        "--fail-on",
-        choices=sorted(_FAIL_ON, key=_FAIL_ON.__getitem__),
-        default="fail",
-        help="exit 1 when a verdict or finding that is not accepted is this bad (default: fail)",
-    )
+    _gate_options(p)
+    _strict_option(p)
     p.set_defaults(handler=_cmd_gate)
 
     p = sub.add_parser("note", help="write the HTML design note")
@@ -254,6 +307,20 @@ def _build_parser() -> argparse.ArgumentParser:
         help="modify the schematic files (default: only list the fields that would change)",
     )
     p.set_defaults(handler=_cmd_annotate)
+
+    p = sub.add_parser(
+        "parts",
+        help="list, per part, the datasheet numbers the review lacks or assumes; write a "
+        "part-library skeleton",
+    )
+    _selection_options(p)
+    p.add_argument(
+        "--write",
+        metavar="FILE",
+        help="write a part-library skeleton (TOML) to FILE, ready to edit",
+    )
+    p.add_argument("--force", action="store_true", help="overwrite FILE when it exists")
+    p.set_defaults(handler=_cmd_parts)
 
     p = sub.add_parser("demo", help="write the demo project and its design note into a folder")
     p.add_argument(

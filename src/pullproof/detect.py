@@ -11,11 +11,13 @@ from __future__ import annotations
 import fnmatch
 import re
 from collections.abc import Mapping
-from dataclasses import dataclass
+from dataclasses import dataclass, fields, replace
 
+from .assume import Assumer, io_supply, stand
 from .circuit import Circuit, Net, Part
 from .elements import Element
 from .errors import ValueParseError
+from .families.loader import InputModel
 from .families.match import PartInfo, PartKind, ResistorInfo
 from .network import (
     CapacitorOnNet,
@@ -30,7 +32,7 @@ from .network import (
     Rail,
     SwitchOnNet,
 )
-from .provenance import Origin, Provenance, Sourced, Status
+from .provenance import Origin, Provenance, Sourced, Stands, Status
 from .rules import RailSpec, Rules
 from .supplies import RailTie, supply_nets
 from .topology import PinOnNet, PullSite
@@ -42,7 +44,6 @@ __all__ = ["Resolver", "UnknownRail", "enabled_internal_pull"]
 # part says nothing (common practice: small-signal devices are rated for 100 mA and more).
 _TRANSISTOR_SINK = (Q_(10e-3, "A"), Q_(0.4, "V"))
 _TRANSISTOR_LEAK = Q_(1e-6, "A")
-_POWER_PIN_NAMES = ("VCC*", "VDD*", "IOVDD*", "DVDD*", "VIO*", "V+", "VDDIO*", "VCCIO*", "VL")
 
 
 @dataclass(frozen=True)
@@ -54,9 +55,13 @@ class UnknownRail:
     refs: tuple[str, ...]
 
 
-def _assumed(value: object, name: str, reason: str, status: Status = Status.DEFAULT) -> Sourced:
+def _assumed(
+    value: object, name: str, reason: str, status: Status, quantity: str, ref: str
+) -> Sourced:
     """A driver rating the part does not state: a limit resting on it is soft."""
-    return Sourced(value, Provenance(Origin.ASSUMED, name, status, reason))
+    fix = f"field 'pullproof.{quantity.lower()}' on {ref}, or a part-library entry"
+    stands = Stands(ref, "", quantity, "", "default", fix)
+    return Sourced(value, Provenance(Origin.ASSUMED, name, status, reason, stands))
 
 
 def _derived(value: object, where: str) -> Sourced:
@@ -92,6 +97,11 @@ def enabled_internal_pull(part: Part) -> tuple[tuple[Sourced, Sourced], Directio
     return (Sourced(lo, where), Sourced(hi, where)), way
 
 
+def _pin_label(pin: PinOnNet) -> str:
+    """How assumption lists name a pin: its number, and its name when it has one."""
+    return pin.pin if not pin.name or pin.name == pin.pin else f"{pin.pin} ({pin.name})"
+
+
 def _magnitude(value: Sourced | None) -> Sourced | None:
     return None if value is None else Sourced(abs(value.value), value.source)
 
@@ -112,6 +122,7 @@ class Resolver:
         self.nets = {n.name: n for n in circuit.nets}
         self.supplies = supply_nets(circuit)
         self.elements: Mapping[str, Element] = elements or {}
+        self.assumer = Assumer(circuit, infos, rules, self.rail_of)
 
     def element(self, label: str) -> Element:
         """The resistor a label names (``R3``, ``RN1 (1–8)``) as part and pins."""
@@ -145,10 +156,21 @@ class Resolver:
         return None if spec is None else RailTie(spec.name, spec.ground, not spec.inferred)
 
     def _rail(self, name: str) -> Rail | None:
+        """The rail's voltage range: from the rules or its name; for a rail named for USB bus
+        power the USB figures, and for one whose voltage nothing states the range every part
+        it powers accepts (both assumed; see :mod:`pullproof.assume`). None: unknown."""
+        if self.assumer.usb(name):
+            usb = self.assumer.usb_rail(name)
+            if usb is not None:
+                return usb
         spec = self.rules.rail(name)
+        if spec is not None and spec.follows and spec.v_min is None:
+            base = self._rail(spec.follows) if spec.follows != name else None
+            return None if base is None else replace(base, name=name, follows=spec.follows)
         if spec is None or spec.v_min is None or spec.v_max is None or spec.nominal is None:
-            return None
-        return Rail(spec.name, spec.v_min, spec.v_max, spec.nominal, ground=spec.ground)
+            return self.assumer.ranged_rail(name)
+        return Rail(spec.name, spec.v_min, spec.v_max, spec.nominal, ground=spec.ground,
+                    follows=spec.follows)  # fmt: skip
 
     def _ground(self) -> Rail:
         zero = Sourced(Q_(0.0, "V"), Provenance(Origin.SCHEMATIC, "ground net", Status.USER))
@@ -187,21 +209,24 @@ class Resolver:
         )
         elements = tuple(self.element(r) for r in refs)
         arrays = elements if any(e.array for e in elements) else ()
+        label = "/".join(refs)
+        if arrays:  # an array element nothing rates: the array-element class (assumed)
+            power = power or self.assumer.array_rating("power", label)
+            wv = wv or self.assumer.array_rating("working_voltage", label)
+        tol, tcr = stand(tol, label, ""), stand(tcr, label, "")
+        power = None if power is None else stand(power, label, "")
+        wv = None if wv is None else stand(wv, label, "")
         return PullResistor(refs, ohms, tol, tcr, power, wv, size=first.size, elements=arrays)
 
     # ------------------------------------------------------------------ inputs
-    def _supply_of(self, part: Part) -> RailSpec | None:
-        """The rail feeding a part: the net on its power-input pin(s)."""
-        for pin in part.pins:
-            is_power = pin.type == "power_in" or any(
-                fnmatch.fnmatchcase(pin.name.upper(), p) for p in _POWER_PIN_NAMES
-            )
-            if not is_power:
-                continue
-            net = self.circuit.net_of(part.ref, pin.number)
-            spec = self.rail_of(net) if net is not None else None
-            if spec is not None and not spec.ground and spec.v_min is not None:
-                return spec
+    def _supply_of(self, part: Part, pin: str) -> Rail | None:
+        """The rail feeding ``pin``: the rail on the part's power-input pins, the one nearest
+        the pin's bank where there are several (see :func:`pullproof.assume.io_supply`),
+        with its voltage (stated, or assumed as for any rail)."""
+        for spec in io_supply(self.circuit, part, pin, self.rail_of):
+            rail = self._rail(spec.name)
+            if rail is not None:
+                return rail
         return None
 
     def _input(self, pin: PinOnNet, rail: Rail) -> InputOnNet:
@@ -225,6 +250,11 @@ class Resolver:
                     "the part-library entry does not list this pin; add its name to 'pins'",
                 )
             )
+        family = info.family
+        if model is None:
+            model = self.assumer.class_model(part)
+            if model is not None:  # judged with the input class instead (assumed)
+                family, missing = f"{model.family.name} (assumed)", []
         if model is None:
             if not missing:
                 missing.append(
@@ -234,17 +264,57 @@ class Resolver:
                         "add field 'pullproof.family' (e.g. HC) or a part-library entry",
                     )
                 )
-            return InputOnNet(pin.ref, pin.pin, info.family, (), series_ohms=series,
-                              series_ref=pin.via, missing=tuple(missing))  # fmt: skip
+            return InputOnNet(pin.ref, pin.pin, family, (), series_ohms=series,
+                              series_ref=pin.via, missing=tuple(missing),
+                              name=pin.name)  # fmt: skip
         pull = enabled_internal_pull(part)
-        supply = self._supply_of(part)
-        same = not rail.ground and (supply is None or supply.name == rail.name)
-        if supply is None or supply.v_min is None or supply.v_max is None:
+        found = supply = self._supply_of(part, pin.pin)
+        follows = None
+        if (
+            supply is not None
+            and not rail.ground
+            and not supply.same_supply(rail)
+            and all(self.assumer.class_ranged(r) for r in (supply, rail))
+        ):
+            # Two supplies whose voltages nothing states: judged as one (an assumption the
+            # verdict lists), not as the worst pairing of two unknowns.
+            follows, supply = self.assumer.follows(supply, rail), rail
+        return self._corners(
+            InputOnNet(
+                pin.ref,
+                pin.pin,
+                family,
+                (),
+                same_supply_as_pull=not rail.ground
+                and (supply is None or supply.same_supply(rail)),
+                series_ohms=series,
+                series_ref=pin.via,
+                internal_pull=pull[0] if pull else None,
+                internal_pull_direction=pull[1] if pull else None,
+                schmitt=model.schmitt,
+                missing=tuple(missing),
+                name=pin.name,
+                supply="" if found is None else found.name,
+                supply_assumed=follows,
+            ),
+            model,
+            supply,
+            rail,
+        )
+
+    def _corners(
+        self, inp: InputOnNet, model: InputModel, supply: Rail | None, rail: Rail
+    ) -> InputOnNet:
+        """The input's levels at every corner of its own supply (and the table breakpoints
+        inside it), each corner completed by the assumptions in force."""
+        if supply is None:
             lo, hi = rail.v_min, rail.v_max
-            note = f"assumed: {pin.ref} is powered from {rail.name} (no supply pin found)"
+            note = f"assumed: {inp.ref} is powered from {rail.name} (no supply pin found)"
             if rail.ground:  # no supply drawn for a pulled-down input: its family's whole range
                 lo, hi = model.supply_range
-                note = f"assumed: {pin.ref} may run anywhere in its family's supply range"
+                note = f"assumed: {inp.ref} may run anywhere in its family's supply range"
+                if model.family.supply == (0.0, 0.0):  # fields only: levels need no supply
+                    note = f"{inp.ref}: levels from its fields, which need no supply"
             lo = Sourced(lo.value, Provenance(Origin.DERIVED, note, Status.USER))
             hi = Sourced(hi.value, Provenance(Origin.DERIVED, note, Status.USER))
         else:
@@ -256,19 +326,15 @@ class Resolver:
                 corners.append(model.at(_derived(Q_(bp, "V"), "family table breakpoint")))
         if v_hi > v_lo + 1e-12:
             corners.append(model.at(hi))
-        return InputOnNet(
-            pin.ref,
-            pin.pin,
-            info.family,
-            tuple(corners),
-            same_supply_as_pull=same,
-            series_ohms=series,
-            series_ref=pin.via,
-            internal_pull=pull[0] if pull else None,
-            internal_pull_direction=pull[1] if pull else None,
-            schmitt=model.schmitt,
-            missing=tuple(missing),
+        label = inp.pin if inp.name in ("", inp.pin) else f"{inp.pin} ({inp.name})"
+        other = not inp.same_supply_as_pull
+        has = frozenset(
+            f.name
+            for f in fields(InputLevels)
+            if any(getattr(c, f.name) is not None for c in corners)
         )
+        done = tuple(self.assumer.complete(c, inp.ref, label, other, has) for c in corners)
+        return replace(inp, corners=done)
 
     # ------------------------------------------------------------------ switches, drivers
     def _far_rail(self, far_net: str) -> RailSpec | None:
@@ -302,22 +368,26 @@ class Resolver:
                 vce_sat=r.get("vce_sat"),
             )  # fmt: skip
         if info.kind is PartKind.TRANSISTOR:
+            cp = Status.COMMON_PRACTICE
             i_ol = fields["i_ol"] or _assumed(
                 _TRANSISTOR_SINK[0], "assumed transistor sink current", "small-signal "
-                "transistors sink far more than a pull draws", Status.COMMON_PRACTICE
+                "transistors sink far more than a pull draws", cp, "I_OL", pin.ref,
             )  # fmt: skip
             v_ol = fields["v_ol"] or _assumed(
                 _TRANSISTOR_SINK[1], "assumed transistor saturation voltage",
-                "small-signal saturation is below 0.4 V at these currents",
-                Status.COMMON_PRACTICE,
+                "small-signal saturation is below 0.4 V at these currents", cp, "V_OL", pin.ref,
             )  # fmt: skip
             i_off = fields["i_off"] or _assumed(
                 _TRANSISTOR_LEAK, "assumed transistor off-state leakage",
-                "small-signal transistors leak well under 1 µA when off", Status.COMMON_PRACTICE,
+                "small-signal transistors leak well under 1 µA when off", cp, "I_off", pin.ref,
             )  # fmt: skip
+            label = _pin_label(pin)
+            i_ol, v_ol, i_off = (stand(v, pin.ref, label) for v in (i_ol, v_ol, i_off))
             return DriverOnNet(pin.ref, pin.pin, "transistor", i_ol, v_ol, i_off)
         kind = "open-collector" if "collector" in pin.name.lower() else "open-drain"
-        return DriverOnNet(pin.ref, pin.pin, kind, fields["i_ol"], fields["v_ol"], fields["i_off"])
+        # An output without ratings gets the driver class (assumed) while assumptions are on.
+        got = self.assumer.driver(fields, pin.ref, _pin_label(pin))
+        return DriverOnNet(pin.ref, pin.pin, kind, got["i_ol"], got["v_ol"], got["i_off"])
 
     def _capacitor(self, pin: PinOnNet, missing: list[Missing]) -> CapacitorOnNet | None:
         farads = self.infos[pin.ref].ratings.get("capacitance")
@@ -437,6 +507,7 @@ class Resolver:
             mains_adjacent=bool(mains),
             mains_reason=mains,
             missing=tuple(missing),
+            assumed=tuple(i.supply_assumed for i in inputs if i.supply_assumed is not None),
         )
 
     def _opposite(

@@ -1,11 +1,14 @@
 """Judge one pull network: window, fitted band, margin, verdict and E-series recommendation.
 
-Window = [largest hard minimum, smallest hard maximum]. The fitted resistor's whole
-band (tolerance and TCR over the rules' temperature span) must sit inside it.
-Verdicts: ``fail`` when a hard bound or check is violated (an empty window always
-fails); else ``incomplete`` when a needed value is missing; else ``marginal`` when
-a soft bound is missed or the band sits closer than the rules' margin ratio
-(default 10 %) to a binding edge; else ``pass``.
+Window = [largest minimum, smallest maximum] over the hard bounds and those resting on
+an assumed value (:func:`pullproof.assumed.counted`). The fitted resistor's whole band
+(tolerance and TCR over the rules' temperature span) must sit inside it.
+Verdicts: ``fail`` when a hard bound or check is violated (an empty window of hard
+bounds always fails); else ``incomplete`` when a needed value is missing; else
+``marginal`` when a limit resting on an assumption is violated (it would fail if the
+assumption holds, and an assumption never makes a hard fail), a soft bound is missed or
+the band sits closer than the rules' margin ratio (default 10 %) to a binding edge; else
+``pass``. The result's ``basis`` is ``assumed`` when any number it rests on is.
 """
 
 from __future__ import annotations
@@ -14,12 +17,12 @@ import math
 from collections.abc import Iterable, Mapping
 
 from . import eseries
-from .assumed import assumed_band, nominal_meets, soften
+from .assumed import assumed_band, assumptions_of, counted, nominal_meets, soften
 from .constraints import BUILTIN, Constraint, ConstraintPluginError
 from .constraints._common import band, dedupe, eng, pct
 from .errors import RulesError
 from .network import Missing, PullNetwork
-from .results import Bound, BoundKind, Check, NetworkResult, Recommendation, Verdict
+from .results import Basis, Bound, BoundKind, Check, NetworkResult, Recommendation, Verdict
 
 __all__ = ["DEFAULT_MARGIN_RATIO", "OPEN_BOTTOM_OHMS", "OPEN_TOP_OHMS", "evaluate", "recommend"]
 
@@ -49,8 +52,8 @@ def evaluate(
     checks = tuple(i for i in items if isinstance(i, Check))
     r_lo, r_hi = band(network.resistor, network.rules)
 
-    mins = [b for b in bounds if b.hard and b.kind is BoundKind.MIN and b.ohms is not None]
-    maxs = [b for b in bounds if b.hard and b.kind is BoundKind.MAX and b.ohms is not None]
+    mins = [b for b in bounds if counted(b) and b.kind is BoundKind.MIN and b.ohms is not None]
+    maxs = [b for b in bounds if counted(b) and b.kind is BoundKind.MAX and b.ohms is not None]
     lo_b = max(mins, key=_ohms, default=None)
     hi_b = min(maxs, key=_ohms, default=None)
     lo = None if lo_b is None else _ohms(lo_b)
@@ -70,7 +73,10 @@ def evaluate(
     verdict, reason = _judge(network, bounds, checks, (r_lo, r_hi), lo_b, hi_b, margins, missing)
     rec = None
     if not missing and not empty and (lo is not None or hi is not None):
-        rec = recommend(network, (lo, hi), soft=[b for b in bounds if not b.hard and b.evaluated])
+        rec = recommend(
+            network, (lo, hi), soft=[b for b in bounds if not counted(b) and b.evaluated]
+        )
+    assumptions = assumptions_of((*bounds, *checks), network.resistor, network.assumed)
     return NetworkResult(
         network=network,
         bounds=bounds,
@@ -84,6 +90,8 @@ def evaluate(
         checks=checks,
         advice=advice,
         missing=missing,
+        basis=Basis.ASSUMED if assumptions else Basis.DATA,
+        assumptions=assumptions,
     )
 
 
@@ -149,10 +157,14 @@ def _judge(
         f"±{pct(res.tolerance.magnitude(''))}) spans {eng(r_lo, 'Ω')}–{eng(r_hi, 'Ω')}"
     )
     if lo_b is not None and hi_b is not None and _ohms(lo_b) > _ohms(hi_b) * (1 + _REL):
-        return Verdict.FAIL, (
+        text = (
             f"No resistance fits: {lo_b.title.lower()} needs at least {eng(_ohms(lo_b), 'Ω')} "
             f"but {hi_b.title.lower()} allows at most {eng(_ohms(hi_b), 'Ω')}."
         )
+        if lo_b.hard and hi_b.hard:
+            return Verdict.FAIL, text
+        if not [b for b in bounds if b.hard and _violated(b, r_lo, r_hi)] and not missing:
+            return Verdict.MARGINAL, f"{text[:-1]}{_resting(lo_b, hi_b)}"
     hard_bad = [b for b in bounds if b.hard and _violated(b, r_lo, r_hi)]
     band_rests_on = assumed_band(res)
     nominal = res.ohms.magnitude("ohm")
@@ -181,6 +193,20 @@ def _judge(
             f"{fitted}, {side} of {eng(_ohms(b), 'Ω')} from {b.title.lower()} ({b.constraint}) "
             f"only through the assumed {' and '.join(band_rests_on)}; state the part's "
             "Tolerance and TCR to decide."
+        )
+    assumed_bad = [b for b in bounds if not b.hard and b.assumed and _violated(b, r_lo, r_hi)]
+    if assumed_bad:
+        b = max(assumed_bad, key=lambda x: _shortfall(x, r_lo, r_hi))
+        side = "below the minimum" if b.kind is BoundKind.MIN else "above the maximum"
+        return Verdict.MARGINAL, (
+            f"{fitted}, {side} of {eng(_ohms(b), 'Ω')} from {b.title.lower()} "
+            f"({b.constraint}){_resting(b)}"
+        )
+    assumed_checks = [c for c in checks if not c.hard and c.assumed and c.ok is False]
+    if assumed_checks:
+        c = assumed_checks[0]
+        return Verdict.MARGINAL, (
+            f"{c.title} is not met: it needs {c.substituted} ({c.constraint}){_resting(c)}"
         )
     soft_bad = [b for b in bounds if not b.hard and _violated(b, r_lo, r_hi)]
     soft_bad_checks = [c for c in checks if not c.hard and c.ok is False]
@@ -212,6 +238,18 @@ def _judge(
             return Verdict.PASS, f"{fitted}, well inside the window (nearest limit {nearest})."
         return Verdict.PASS, f"{fitted}, at least {pct(ratio)} inside the window."
     return Verdict.PASS, f"{fitted}; no constraint limits the resistance on this net."
+
+
+def _resting(*items: Bound | Check) -> str:
+    """The tail of a reason whose limit rests on assumed values: it is marginal, not a fail,
+    until the values are stated."""
+    names = ", ".join(dict.fromkeys(a for item in items for a in item.assumed))
+    if not names:
+        return "."
+    return (
+        f"; it would fail, but the limit rests on {names}, which nothing states: confirm "
+        "the value (an assumption never makes a hard fail)."
+    )
 
 
 def _shortfall(b: Bound, r_lo: float, r_hi: float) -> float:

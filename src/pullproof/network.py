@@ -53,6 +53,12 @@ class Rail:
     v_max: Sourced
     v_nom: Sourced
     ground: bool = False
+    follows: str = ""  # the rail this one follows (the rules say so): the same supply
+
+    def same_supply(self, other: Rail) -> bool:
+        """True when the two are one supply: the same rail, or one follows the other."""
+        mine = {self.name, self.follows} - {""}
+        return bool(mine & ({other.name, other.follows} - {""}))
 
 
 @dataclass(frozen=True)
@@ -127,6 +133,10 @@ class InputOnNet:
     internal_pull_direction: Direction | None = None
     schmitt: bool = False
     missing: tuple[Missing, ...] = ()
+    name: str = ""  # the pin's name ("GPIO5"), for reports and part-library skeletons
+    supply: str = ""  # the rail on the part's power pins that feeds it ("" when none is drawn)
+    # an assumed value about its supply no limit shows (that it follows the pull rail)
+    supply_assumed: Sourced | None = None
 
 
 @dataclass(frozen=True)
@@ -210,3 +220,6 @@ class PullNetwork:
     mains_reason: str = ""
     missing: tuple[Missing, ...] = ()
     notes: tuple[str, ...] = field(default_factory=tuple)
+    # assumed values the verdict rests on that no limit's terms show (an input's supply
+    # taken to follow the pull rail)
+    assumed: tuple[Sourced, ...] = ()

@@ -11,7 +11,7 @@ from dataclasses import dataclass
 from enum import StrEnum
 from typing import Any
 
-__all__ = ["Origin", "Provenance", "Sourced", "Status"]
+__all__ = ["Origin", "Provenance", "Sourced", "Stands", "Status"]
 
 
 class Origin(StrEnum):
@@ -41,6 +41,25 @@ class Status(StrEnum):
 
 
 @dataclass(frozen=True)
+class Stands:
+    """What an assumed number stands for: the designer's list of values to confirm.
+
+    ``part`` and ``pin`` name where the real value belongs ("" for a rail or a rules value),
+    ``quantity`` the number ("I_high", "V_IH,min", "voltage"), ``text`` the value used as
+    written ("0.7 VDD", "10 µA"), ``basis`` the assumption it comes from (an assumption
+    class such as ``cmos``, ``open-drain``, ``usb-bus``, ``rail range``, or ``default`` for a
+    documented default), and ``fix`` where to put the real one.
+    """
+
+    part: str
+    pin: str
+    quantity: str
+    text: str
+    basis: str
+    fix: str
+
+
+@dataclass(frozen=True)
 class Provenance:
     """The source of one number.
 
@@ -54,6 +73,7 @@ class Provenance:
     where: str
     status: Status = Status.USER
     reason: str = ""
+    stands: Stands | None = None  # for an assumed number: what it stands for
 
     def __post_init__(self) -> None:
         if not self.where:

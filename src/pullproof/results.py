@@ -17,6 +17,8 @@ __all__ = [
     "FINDING_KINDS",
     "Acceptance",
     "AcceptanceMark",
+    "Assumption",
+    "Basis",
     "Bound",
     "BoundKind",
     "Changes",
@@ -31,6 +33,34 @@ __all__ = [
     "Term",
     "Verdict",
 ]
+
+
+class Basis(StrEnum):
+    """What a verdict rests on: stated data only, or at least one assumed value."""
+
+    DATA = "data"
+    ASSUMED = "assumed"
+
+
+@dataclass(frozen=True)
+class Assumption:
+    """One assumed number a verdict rests on, and where the real one belongs.
+
+    ``basis`` names the assumption: an assumption class (``cmos``, ``open-drain``,
+    ``usb-bus``), a rail range, or ``default`` for a documented default.
+    """
+
+    part: str  # "U1" ("" for a rail or a rules value)
+    pin: str  # "7 (GPIO5)" or ""
+    quantity: str  # "I_high", "V_IH,min", "voltage of rail VCC", "tolerance"
+    value: Sourced  # the value used (the first where it varies over supply corners)
+    text: str  # as written: "0.7 VDD", "10uA", "2–6 V"
+    basis: str
+    fix: str  # where to put the real one
+
+    @property
+    def key(self) -> tuple[str, str, str, str]:
+        return (self.part, self.pin, self.quantity, self.basis)
 
 
 class BoundKind(StrEnum):
@@ -192,6 +222,8 @@ class NetworkResult:
     advice: tuple[str, ...] = ()  # for an empty window: what would relax each binding bound
     missing: tuple[Missing, ...] = ()
     accepted: AcceptanceMark | None = None
+    basis: Basis = Basis.DATA  # ASSUMED when any number the verdict rests on is assumed
+    assumptions: tuple[Assumption, ...] = ()  # those numbers, each once
 
     @property
     def counts(self) -> bool:
@@ -209,6 +241,7 @@ class Finding:
     refs: tuple[str, ...]
     message: str
     accepted: AcceptanceMark | None = None
+    assumed: tuple[str, ...] = ()  # the assumed values it rests on (then it is never a fail)
 
     @property
     def counts(self) -> bool:
@@ -281,6 +314,7 @@ class ReviewResult:
     notes: tuple[str, ...] = field(default_factory=tuple)
     warnings: tuple[str, ...] = ()  # stale or unrecorded acceptances
     changes: Changes | None = None  # set by a review against an older revision
+    assume: str = "cmos"  # the input class in force for inputs without data, or "none"
 
     @property
     def worst(self) -> Verdict:
@@ -299,6 +333,14 @@ class ReviewResult:
             if self.changes.old_rules_file is not None:
                 inputs.append(self.changes.old_rules_file)
         return tuple(inputs)
+
+    @property
+    def assumed(self) -> int:
+        """How many verdicts and findings that count toward the gate rest on an assumption
+        (what ``--require-data`` compares)."""
+        return sum(1 for n in self.networks if n.counts and n.basis is Basis.ASSUMED) + sum(
+            1 for f in self.findings if f.counts and f.assumed
+        )
 
     @property
     def gate(self) -> Verdict:

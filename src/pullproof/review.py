@@ -111,6 +111,11 @@ def parse_where(items: Iterable[str]) -> tuple[tuple[str, str], ...]:
     return tuple(out)
 
 
+def load_library(root: Path, parts: Sequence[Path]) -> PartLibrary:
+    """The part library a review of ``root`` reads: ``parts``, else the file beside it."""
+    return _library(root, parts)
+
+
 def _library(root: Path, parts: Sequence[Path]) -> PartLibrary:
     paths = list(parts)
     beside = root.parent / PARTS_FILE
@@ -241,14 +246,19 @@ def _check_findings(result: NetworkResult) -> list[Finding]:
     for c in result.checks:
         if c.constraint == "input-tolerance" and c.ok is False:
             n = result.network
+            # A limit resting on an assumed value never makes a hard fail: marginal, saying so.
+            rests = (
+                f"; it rests on {', '.join(c.assumed)}, which nothing states" if c.assumed else ""
+            )
             out.append(
                 Finding(
                     "rail-above-input-tolerance",
-                    Verdict.FAIL,
+                    Verdict.FAIL if c.hard else Verdict.MARGINAL,
                     n.net,
                     (*(e.ref for e in n.resistor.members), *(i.ref for i in n.inputs)),
                     f"{', '.join(n.resistor.refs)} pulls {n.net} to {n.rail.name}, above what an "
-                    f"input on it tolerates (needs {c.substituted})",
+                    f"input on it tolerates (needs {c.substituted}){rests}",
+                    assumed=c.assumed,
                 )
             )
     return out
@@ -262,6 +272,7 @@ def review(
     select: Selection | None = None,
     circuit: Circuit | None = None,
     hierarchy: Hierarchy | None = None,
+    assume: str | None = None,
 ) -> ReviewResult:
     """Review every pull resistor of the schematic rooted at ``root``.
 
@@ -272,6 +283,7 @@ def review(
         select: restrict the judged resistors (``--ref``, ``--where``).
         circuit: ``root`` already read and connected (saves reading it again).
         hierarchy: ``root`` already read (the files behind ``circuit``).
+        assume: overrides the rules' ``assume`` ("none" for ``--strict``: no assumption).
 
     Raises:
         PullproofError: unreadable or malformed schematic, rules, part library or field.
@@ -281,6 +293,8 @@ def review(
     hier = hierarchy if hierarchy is not None else load_hierarchy(root_path)
     circuit = circuit if circuit is not None else circuit_from_hierarchy(hier, os.fspath(root))
     rules_obj = load_rules(root_path, Path(rules) if rules is not None else None)
+    if assume is not None:
+        rules_obj = rules_obj.with_assume(assume)
     library = _library(root_path, [Path(p) for p in parts])
     result = review_circuit(
         circuit, rules_obj, library, select or Selection(), library_pins(hier, circuit)
@@ -377,6 +391,7 @@ def review_circuit(
         skipped=tuple(sorted(skipped, key=lambda s: (s.net, s.ref, s.element))),
         files=files,
         rules_file=rules.file or None,
+        assume=rules.assume,
     )
     acceptances = read_acceptances(circuit, rules)
     return apply_acceptances(review_result, acceptances, whole=not select.active)
@@ -434,4 +449,4 @@ def _kind_word(info: PartInfo) -> str:
         PartKind.MCU: "mcu",
         PartKind.CONNECTOR: "connector",
         PartKind.OPAMP: "opamp",
-    }.get(info.kind, "ic" if info.inputs is not None else "other")
+    }.get(info.kind, "ic" if info.inputs is not None and not info.stated_kind else "other")

@@ -14,14 +14,14 @@ import fnmatch
 import re
 import tomllib
 from collections.abc import Callable, Mapping
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 from types import MappingProxyType
 from typing import Any
 
 from .errors import Location, RulesError, ValueParseError
 from .eseries import SERIES
-from .provenance import Origin, Provenance, Sourced, Status
+from .provenance import Origin, Provenance, Sourced, Stands, Status
 from .supplies import read_supply_name
 from .textfile import read_utf8
 from .units import (
@@ -83,7 +83,14 @@ KEYS: Mapping[str, Key] = MappingProxyType(
         "resistor.tcr": Key(
             "tcr", "200ppm/K", "thick-film chip resistors, common practice", assumed=True
         ),
-        "resistor.power": Key("power", None, "taken from the footprint size when known"),
+        "resistor.power": Key(
+            "power", None, "assumed from the footprint size when known; a value or a table by size"
+        ),
+        "resistor.working_voltage": Key(
+            "voltage",
+            None,
+            "assumed from the footprint size when known; a value or a table by size",
+        ),
         "resistor.size": Key("size", None, "taken from the footprint when known"),
         "temperature.min": Key("temperature", "0°C", "commercial range, common practice"),
         "temperature.max": Key("temperature", "70°C", "commercial range, common practice"),
@@ -97,11 +104,20 @@ KEYS: Mapping[str, Key] = MappingProxyType(
             "a short bus on one board: a few 10 pF pins plus traces",
             assumed=True,
         ),
+        "assume": Key(
+            "assume",
+            "cmos",
+            "judge an input without data as CMOS at its own supply, shown as assumed; "
+            '"none" never assumes',
+        ),
     }
 )
 _NET_KEYS = frozenset(
-    {"match", "margin", "i2c", "bus_capacitance", "bounce", "edge_time", "current_budget"}
-)
+    {
+        "match", "margin", "i2c", "bus_capacitance", "bounce", "edge_time", "current_budget",
+        "input", "input_supply",
+    }
+)  # fmt: skip
 _SECTIONS = frozenset({"resistor", "temperature", "preferred", "i2c"})
 _GROUNDS = ("GND", "GNDA", "GNDD", "GNDPWR", "GNDREF", "AGND", "DGND", "PGND", "VSS", "0V", "EARTH")
 _GROUND_PATTERNS = ("GND*", "*_GND", "VSS*", "EARTH*", "0V", "CHASSIS*")
@@ -117,6 +133,7 @@ class RailSpec:
     v_max: Sourced | None
     ground: bool = False
     inferred: str = ""  # why a net is a supply by its function ("" when named or listed)
+    follows: str = ""  # the rail it follows ([rails] X = { follows = "VCC" }): one supply
 
 
 @dataclass(frozen=True)
@@ -129,6 +146,10 @@ class NetRules:
     bounce: Sourced | None
     edge_time: Sourced | None
     current_budget: Sourced | None
+    # an input off this schematic (a connector net): an assumption class or family name, and
+    # its supply (a rail name or a voltage such as "3V3"; "" = the pull rail)
+    input: str = ""
+    input_supply: str = ""
 
 
 @dataclass(frozen=True)
@@ -150,6 +171,18 @@ class Rules:
     rails: Mapping[str, RailSpec] = field(default_factory=lambda: MappingProxyType({}))
     nets: tuple[tuple[str, Mapping[str, Sourced | str]], ...] = ()
     accepts: tuple[RawEntry, ...] = ()  # [[accept]] entries, read by pullproof.acceptance
+    # resistor ratings given as a table by chip size: {"resistor.power": {"0603": 0.1 W}}
+    by_size: Mapping[str, Mapping[str, Sourced]] = field(
+        default_factory=lambda: MappingProxyType({})
+    )
+
+    def for_size(self, key: str, size: str) -> Sourced | None:
+        """A resistor rating the rules state for ``size`` (a table by size, or one value)."""
+        table = self.by_size.get(key)
+        if table is not None:
+            return table.get(size)
+        value = self.values.get(key)
+        return value if isinstance(value, Sourced) else None
 
     def get(self, key: str) -> Any:
         """The value of a rules key (Sourced, a word, or None when unset and no default)."""
@@ -162,6 +195,17 @@ class Rules:
     @property
     def policy(self) -> str:
         return str(self.values["policy"])
+
+    @property
+    def assume(self) -> str:
+        """The input class for inputs without data ("cmos", "lvttl"), or "none"."""
+        return str(self.values["assume"])
+
+    def with_assume(self, word: str) -> Rules:
+        """These rules with ``assume`` set to ``word`` (``--strict`` passes "none")."""
+        values = dict(self.values)
+        values["assume"] = word
+        return replace(self, values=MappingProxyType(values))
 
     def is_ground(self, net_name: str) -> bool:
         name = _bare(net_name).upper()
@@ -207,6 +251,8 @@ class Rules:
             "bounce": self.values["bounce"],
             "edge_time": self.values["edge_time"],
             "current_budget": self.values["current_budget"],
+            "input": "",
+            "input_supply": "",
         }
         name = _bare(net_name).upper()
         if not merged["i2c"] and re.search(r"(^|[^A-Z])(I2C|SDA|SCL)", name):
@@ -221,7 +267,13 @@ class Rules:
             bounce=merged["bounce"],
             edge_time=merged["edge_time"],
             current_budget=merged["current_budget"],
+            input=str(merged["input"] or ""),
+            input_supply=str(merged["input_supply"] or ""),
         )
+
+    def names_input(self, net_name: str) -> bool:
+        """True when a ``[[net]]`` entry names an input off this schematic for the net."""
+        return bool(self.for_net(net_name).input)
 
 
 def _bare(net_name: str) -> str:
@@ -248,6 +300,30 @@ def _word(allowed: tuple[str, ...]) -> Callable[[str, str], str]:
     return read
 
 
+def _assume(text: str, field: str) -> str:
+    """An input class of the shipped assumption classes, or "none"."""
+    from .families.classes import load_classes  # late: families imports this module
+
+    allowed = (*load_classes().inputs, "none")
+    if text.strip().lower() not in allowed:
+        raise ValueParseError(text, expected=f"one of {', '.join(allowed)}", field=field)
+    return text.strip().lower()
+
+
+def _input(text: str, field: str) -> str:
+    """What is on the far side of a connector net: an input class or a logic family."""
+    from .families.classes import load_classes  # late: families imports this module
+    from .families.loader import load_families
+
+    classes, families = tuple(load_classes().inputs), tuple(load_families())
+    word = text.strip()
+    by_upper = {n.upper(): n for n in (*classes, *families)}
+    if word.upper() not in by_upper:
+        choices = ", ".join((*classes, *families))
+        raise ValueParseError(text, expected=f"an input class or family: {choices}", field=field)
+    return by_upper[word.upper()]
+
+
 def _size(text: str, field: str) -> str:
     if not re.fullmatch(r"0201|0402|0603|0805|1206|1210|2010|2512", text):
         raise ValueParseError(text, expected="a chip size such as 0603", field=field)
@@ -269,11 +345,13 @@ _READERS: Mapping[str, Callable[[str, str], Any]] = MappingProxyType(
         "series": _word(tuple(s.lower() for s in SERIES)),
         "policy": _word(("centre", "low-current")),
         "i2c": _word(("", "standard", "fast", "fast-plus")),
+        "assume": lambda t, f: _assume(t, f),
+        "input": lambda t, f: _input(t, f),
         "size": _size,
         "patterns": lambda t, f: t,
     }
 )
-_WORDS = frozenset({"series", "policy", "i2c", "size", "patterns"})
+_WORDS = frozenset({"series", "policy", "i2c", "size", "patterns", "assume", "input"})
 
 
 def _line_of(text: str, dotted: str) -> int:
@@ -367,8 +445,13 @@ def _build(reader: _Reader | None, doc: Mapping[str, Any]) -> Rules:
             assert reader is not None
             raise reader.unknown(dotted, valid)
     default_reader = _Reader(Path(RULES_FILE), "")
+    by_size: dict[str, Mapping[str, Sourced]] = {}
     for dotted, key in KEYS.items():
-        if dotted in flat:
+        if dotted in _BY_SIZE and isinstance(flat.get(dotted), dict):
+            assert reader is not None
+            by_size[dotted] = _size_table(reader, dotted, key.kind, flat[dotted])
+            values[dotted] = None
+        elif dotted in flat:
             assert reader is not None
             values[dotted] = reader.value(dotted, key.kind, flat[dotted])
         elif key.default is None:
@@ -377,14 +460,65 @@ def _build(reader: _Reader | None, doc: Mapping[str, Any]) -> Rules:
             parsed = default_reader.value(dotted, key.kind, key.default)
             if isinstance(parsed, Sourced):
                 origin = Origin.ASSUMED if key.assumed else Origin.DEFAULT
-                src = Provenance(origin, f"default {dotted}", Status.DEFAULT, key.reason)
+                stands = None
+                if key.assumed:
+                    quantity, fix = _ASSUMED_KEYS[dotted]
+                    stands = Stands("", "", quantity, key.default, "default", fix)
+                src = Provenance(origin, f"default {dotted}", Status.DEFAULT, key.reason, stands)
                 parsed = Sourced(parsed.value, src)
             values[dotted] = parsed
     rails = _rails(reader, flat.get("rails", {}), values)
     nets = _nets(reader, flat.get("net", []))
+    for _, entry in nets:
+        supply = str(entry.get("input_supply", ""))
+        if supply and _bare(supply) not in rails and read_supply_name(supply) is None:
+            assert reader is not None
+            raise reader.error(
+                "net.input_supply",
+                f"rules key 'net.input_supply': {supply!r} is neither a rail listed in [rails] "
+                'nor a supply name such as "3V3" or "+5V"',
+            )
     accepts = _raw_entries(reader, flat.get("accept", []), "accept")
     name = reader.path.name if reader else ""
-    return Rules(name, MappingProxyType(values), rails, nets, accepts)
+    return Rules(name, MappingProxyType(values), rails, nets, accepts, MappingProxyType(by_size))
+
+
+_BY_SIZE = frozenset({"resistor.power", "resistor.working_voltage"})
+# What each assumed default stands for, and where the real value goes.
+_ASSUMED_KEYS: Mapping[str, tuple[str, str]] = MappingProxyType(
+    {
+        "resistor.tolerance": (
+            "tolerance", "the field 'Tolerance' (or the Value, 10k 1%), or resistor.tolerance "
+            "in the rules",
+        ),
+        "resistor.tcr": ("TCR", "the field 'TCR', or resistor.tcr in the rules"),
+        "i2c.bus_capacitance": (
+            "bus capacitance", "i2c.bus_capacitance in the rules, or bus_capacitance in a "
+            "[[net]] entry",
+        ),
+    }
+)  # fmt: skip
+
+
+def _size_table(
+    reader: _Reader, dotted: str, kind: str, table: Mapping[str, Any]
+) -> Mapping[str, Sourced]:
+    """``power = { "0402" = "1/16W", "0603" = "0.1W", "array" = "1/32W" }``: a rating per
+    chip size; ``array`` rates each element of a resistor array."""
+    out: dict[str, Sourced] = {}
+    for size, raw in table.items():
+        try:
+            if size != "array":
+                _size(str(size), f"{dotted}.{size}")
+        except ValueParseError:
+            raise reader.error(
+                dotted,
+                f"rules key {dotted!r}: {size!r} is not a chip size such as 0603, nor array",
+            ) from None
+        got = reader.value(dotted, kind, raw)
+        assert isinstance(got, Sourced)
+        out[str(size)] = got
+    return MappingProxyType(out)
 
 
 def _raw_entries(reader: _Reader | None, entries: Any, name: str) -> tuple[RawEntry, ...]:
@@ -410,14 +544,21 @@ def _rails(reader: _Reader | None, table: Any, values: Mapping[str, Any]) -> Map
     assert reader is not None
     if not isinstance(table, dict):
         raise reader.error("rails", "rules key 'rails': write a table, e.g. [rails] VCC = \"5V\"")
+    follows: dict[str, str] = {}
     for name, spec in table.items():
         dotted = f"rails.{name}"
         entry = spec if isinstance(spec, dict) else {"nominal": spec}
         for key in entry:
-            if key not in ("nominal", "tolerance"):
-                raise reader.unknown(
-                    f"{dotted}.{key}", [f"{dotted}.nominal", f"{dotted}.tolerance"]
+            if key not in _RAIL_KEYS:
+                raise reader.unknown(f"{dotted}.{key}", [f"{dotted}.{k}" for k in _RAIL_KEYS])
+        if "follows" in entry:
+            other = entry["follows"]
+            if set(entry) != {"follows"} or not isinstance(other, str) or not other:
+                raise reader.error(
+                    dotted, f'rules key {dotted!r}: write {{ follows = "RAIL" }} on its own'
                 )
+            follows[name] = other
+            continue
         nominal = reader.value(dotted, "voltage", entry.get("nominal", ""))
         tol = (
             reader.value(f"{dotted}.tolerance", "percent", entry["tolerance"])
@@ -429,10 +570,33 @@ def _rails(reader: _Reader | None, table: Any, values: Mapping[str, Any]) -> Map
         frac = tol.magnitude("")
         lo, hi = sorted((volts * (1 - frac), volts * (1 + frac)))
         derived = Provenance(Origin.DERIVED, f"{nominal.source.where} ± {tol.source.where}")
-        out[name] = RailSpec(
-            name, nominal, Sourced(Q_(lo, "V"), derived), Sourced(Q_(hi, "V"), derived), volts == 0
-        )
+        v_lo, v_hi = Sourced(Q_(lo, "V"), derived), Sourced(Q_(hi, "V"), derived)
+        # min and max state an asymmetric range (a USB port, a battery) instead of ±tolerance
+        for key in ("min", "max"):
+            if key in entry:
+                got = reader.value(f"{dotted}.{key}", "voltage", entry[key])
+                assert isinstance(got, Sourced)
+                v_lo, v_hi = (got, v_hi) if key == "min" else (v_lo, got)
+        if not v_lo.magnitude("V") <= volts <= v_hi.magnitude("V"):
+            raise reader.error(
+                dotted, f"rules key {dotted!r}: min and max must enclose the nominal voltage"
+            )
+        out[name] = RailSpec(name, nominal, v_lo, v_hi, volts == 0)
+    for name, other in follows.items():
+        # a rail that follows another (a switched, filtered or backed-up copy of it) has its
+        # voltage and is judged as the same supply; "" voltages when the other states none
+        if other in follows:
+            raise reader.error(f"rails.{name}", f"rules key 'rails.{name}': {other!r} follows "
+                               "another rail itself; name the rail it follows")  # fmt: skip
+        base = out.get(other)
+        if base is None:
+            out[name] = RailSpec(name, None, None, None, follows=other)
+        else:
+            out[name] = replace(base, name=name, follows=other)
     return MappingProxyType(out)
+
+
+_RAIL_KEYS = ("nominal", "tolerance", "min", "max", "follows")
 
 
 _NET_KINDS = MappingProxyType(
@@ -443,6 +607,8 @@ _NET_KINDS = MappingProxyType(
         "bounce": "time",
         "edge_time": "time",
         "current_budget": "current",
+        "input": "input",
+        "input_supply": "patterns",
     }
 )
 

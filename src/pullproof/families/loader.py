@@ -22,10 +22,11 @@ from typing import Any
 
 from ..errors import ValueParseError
 from ..network import InputLevels
-from ..provenance import Origin, Provenance, Sourced, Status
+from ..provenance import Origin, Provenance, Sourced, Stands, Status
 from ..units import Q_, parse_capacitance, parse_current, parse_time, parse_voltage
 
 __all__ = [
+    "ASSUMED_WORD",
     "STATUS_WORDS",
     "Family",
     "InputModel",
@@ -45,6 +46,10 @@ STATUS_WORDS: Mapping[str, Status] = MappingProxyType(
         "example": Status.USER,
     }
 )
+# A status that makes a number an assumption (origin "assumed"): a stand-in the family's
+# standard does not state, or a part-library value copied from an assumption class and not
+# yet confirmed. A limit resting on it is soft, and `assume = "none"` leaves it out.
+ASSUMED_WORD = "assumed"
 _STATUS_KEYS = frozenset(
     {"supply", "levels", "schmitt", "i_high", "i_low", "c_in", "v_in_max", "transition"}
 )
@@ -131,14 +136,41 @@ class Family:
     schmitt: tuple[LevelRow, ...] = ()
     origin: Origin = Origin.FAMILY
     extra: Mapping[str, Any] = field(default_factory=lambda: MappingProxyType({}))
+    # status keys whose numbers are assumptions (status "assumed"), and why
+    assumed: frozenset[str] = frozenset()
+    assumption: str = ""
+    # exact provenance per number (an assumption class names a source for each one)
+    provenance_of: Mapping[str, Provenance] = field(default_factory=lambda: MappingProxyType({}))
 
-    def source(self, key: str, detail: str = "") -> Provenance:
-        """The provenance of one number of this family."""
+    def source(self, key: str, detail: str = "", group: str = "") -> Provenance:
+        """The provenance of one number of this family (``group``: its status key, when
+        the number shares one, e.g. ``levels`` for ``vih_min``)."""
+        exact = self.provenance_of.get(key)
+        if exact is not None:
+            return replace(exact, reason=_join(detail, exact.reason))
+        group = group or key
         where = f"family {self.name}, {self.standard}"
         if self.origin is Origin.PART_LIBRARY:
             where = f"part library entry {self.name} ({self.file})"
+        if group in self.assumed:
+            return self._assumed(key, group, where, detail)
         reason = "; ".join(p for p in (detail, self.note) if p)
-        return Provenance(self.origin, where, self.status.get(key, Status.USER), reason)
+        return Provenance(self.origin, where, self.status.get(group, Status.USER), reason)
+
+    def _assumed(self, key: str, group: str, where: str, detail: str) -> Provenance:
+        library = self.origin is Origin.PART_LIBRARY
+        fix = (
+            f"the datasheet figure in part library entry {self.name} ({self.file}), then "
+            f'status_of.{group} = "user"'
+            if library
+            else "a part-library entry or field for the part you fit"
+        )
+        basis = f"part library entry {self.name} (assumed)" if library else f"family {self.name}"
+        stands = Stands("", "", _QUANTITY.get(key, key), "", basis, fix)
+        reason = _join(detail, self.assumption or "a stand-in value nothing states")
+        return Provenance(
+            Origin.ASSUMED, f"assumed {key} ({where})", Status.DEFAULT, reason, stands=stands
+        )
 
     def breakpoints(self) -> tuple[float, ...]:
         """Every supply voltage where a table row starts or ends, inside the supply range."""
@@ -263,11 +295,31 @@ class InputModel:
         found = _lookup(rows, key, v)
         if found is None:
             return None
-        return Sourced(Q_(found[0], "V"), self.family.source(group, _join(found[1], outside)))
+        src = self.family.source(key, _join(found[1], outside), group)
+        return Sourced(Q_(found[0], "V"), src)
 
 
 def _join(*parts: str) -> str:
     return "; ".join(p for p in parts if p)
+
+
+# How reports name each number of an input model.
+_QUANTITY: Mapping[str, str] = MappingProxyType(
+    {
+        "vih_min": "V_IH,min",
+        "vil_max": "V_IL,max",
+        "i_high": "I_high",
+        "i_low": "I_low",
+        "v_in_max": "V_in,max",
+        "c_in": "C_in",
+        "supply": "supply range",
+        "vt_plus_min": "V_T+,min",
+        "vt_plus_max": "V_T+,max",
+        "vt_minus_min": "V_T-,min",
+        "vt_minus_max": "V_T-,max",
+        "transition": "t_transition,max",
+    }
+)
 
 
 # ---------------------------------------------------------------- reading TOML tables
@@ -275,9 +327,8 @@ def _join(*parts: str) -> str:
 
 def _status(word: Any, where: str) -> Status:
     if not isinstance(word, str) or word not in STATUS_WORDS:
-        raise ValueParseError(
-            str(word), expected=f"a status: {', '.join(STATUS_WORDS)}", field=where
-        )
+        words = ", ".join((*STATUS_WORDS, ASSUMED_WORD))
+        raise ValueParseError(str(word), expected=f"a status: {words}", field=where)
     return STATUS_WORDS[word]
 
 
@@ -329,7 +380,7 @@ def _rows(table: Mapping[str, Any], key: str, part: str) -> list[Any]:
 
 _FAMILY_KEYS = frozenset(
     {
-        "title", "standard", "status", "status_of", "note", "supply", "v_in_max",
+        "title", "standard", "status", "status_of", "note", "assumption", "supply", "v_in_max",
         "i_high", "i_low", "i_high_25c", "i_low_25c", "c_in", "levels", "schmitt",
     }
 )  # fmt: skip
@@ -352,7 +403,9 @@ def family_from_table(
     for key in table:
         if key not in _FAMILY_KEYS and key not in extra_keys:
             raise ValueParseError(key, expected="a known key (see the file header)", part=part)
-    default = _status(table.get("status", "user"), f"{name}.status")
+    word = table.get("status", "user")
+    assumed: set[str] = set(_STATUS_KEYS) if word == ASSUMED_WORD else set()
+    default = Status.DEFAULT if assumed else _status(word, f"{name}.status")
     statuses = dict.fromkeys(_STATUS_KEYS, default)
     status_of = table.get("status_of", {})
     if not isinstance(status_of, dict):
@@ -363,6 +416,10 @@ def family_from_table(
                 key, expected=f"one of {', '.join(sorted(_STATUS_KEYS))}", field="status_of",
                 part=part,
             )  # fmt: skip
+        if word == ASSUMED_WORD:
+            assumed.add(key)
+            continue
+        assumed.discard(key)
         statuses[key] = _status(word, f"{name}.status_of.{key}")
     if "supply" not in table:
         raise ValueParseError("", expected='supply = ["min V", "max V"]', field="supply", part=part)
@@ -407,6 +464,8 @@ def family_from_table(
         ),
         origin=origin,
         extra=MappingProxyType({k: v for k, v in table.items() if k in extra_keys}),
+        assumed=frozenset(assumed),
+        assumption=str(table.get("assumption", "")),
     )
 
 

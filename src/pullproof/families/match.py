@@ -25,12 +25,13 @@ from typing import Any
 from ..circuit import Part
 from ..errors import Location, PullproofError, ValueParseError
 from ..network import Missing
-from ..provenance import Origin, Provenance, Sourced, Status
+from ..provenance import Origin, Provenance, Sourced, Stands, Status
 from ..rules import Rules
 from ..textfile import read_utf8
 from ..units import (
     Q_,
     ResistorText,
+    format_si,
     parse_capacitance,
     parse_capacitor_text,
     parse_current,
@@ -45,7 +46,7 @@ from ..units import (
 )
 from .kinds import PartKind
 from .kinds import classify as classify_kind
-from .loader import Family, InputModel, family_from_table, load_families
+from .loader import ASSUMED_WORD, Family, InputModel, family_from_table, load_families
 
 __all__ = [
     "FIELDS",
@@ -290,6 +291,17 @@ def _globs(table: Mapping[str, Any], key: str, default: str, part: str) -> tuple
     return tuple(value)
 
 
+def _assumed_entry(src: Provenance, key: str, text: str, name: str, file: str) -> Provenance:
+    """A rating of an entry marked ``status = "assumed"`` (a skeleton not yet filled in)."""
+    fix = f'the datasheet figure in part library entry {name} ({file}), then status = "user"'
+    stands = Stands("", "", RATING_QUANTITY.get(key, key), text,
+                    f"part library entry {name} (assumed)", fix)  # fmt: skip
+    return Provenance(
+        Origin.ASSUMED, f"assumed {key} ({src.where})", Status.DEFAULT,
+        "a value the entry marks as assumed, not yet confirmed", stands,
+    )  # fmt: skip
+
+
 def load_part_library(path: Path) -> PartLibrary:
     """Read a part library (TOML, ``[part.NAME]`` tables; syntax in the example file header).
 
@@ -328,10 +340,15 @@ def load_part_library(path: Path) -> PartLibrary:
             family = family_from_table(
                 name, table, str(path), origin=Origin.PART_LIBRARY, extra_keys=_ENTRY_KEYS
             )
-        src = Provenance(Origin.PART_LIBRARY, f"part library entry {name} ({Path(path).name})",
-                         Status.USER, str(table.get("note", "")))  # fmt: skip
+        where = f"part library entry {name} ({Path(path).name})"
+        src = Provenance(Origin.PART_LIBRARY, where, Status.USER, str(table.get("note", "")))
         ratings = {
-            key: Sourced(reader(str(table[key]), field=key, part=part), src)
+            key: Sourced(
+                reader(str(table[key]), field=key, part=part),
+                _assumed_entry(src, key, str(table[key]), name, Path(path).name)
+                if table.get("status") == ASSUMED_WORD
+                else src,
+            )
             for key, reader in _RATING_READERS.items()
             if key in table
         }
@@ -411,6 +428,7 @@ class PartInfo:
     missing: tuple[Missing, ...] = ()
     # why the part's data say its inputs have no internal pull ("" when they do not say)
     no_internal_pull: str = ""
+    stated_kind: bool = False  # the kind comes from a part-library entry, not from the symbol
 
 
 def _field_source(part: Part, name: str) -> Provenance:
@@ -424,10 +442,43 @@ def _read_field(part: Part, name: str, reader: Callable[..., Any]) -> Sourced | 
     return Sourced(reader(text, field=name, part=part.ref), _field_source(part, name))
 
 
-def _default(value: Any, name: str, reason: str, status: Status = Status.DEFAULT) -> Sourced:
+def _default(
+    value: Any, name: str, reason: str, status: Status, stands: Stands | None = None
+) -> Sourced:
     """A rating the part does not state, assumed from its kind or size: a limit resting on it
-    is soft (see :mod:`pullproof.assumed`)."""
-    return Sourced(value, Provenance(Origin.ASSUMED, f"assumed {name}", status, reason))
+    is soft (see :mod:`pullproof.assumed`); ``stands`` says what it stands for."""
+    return Sourced(value, Provenance(Origin.ASSUMED, f"assumed {name}", status, reason, stands))
+
+
+# How assumption lists name a rating, by its part-library key.
+RATING_QUANTITY: Mapping[str, str] = MappingProxyType(
+    {
+        "contact_max": "I_contact,max",
+        "wetting": "I_wet,min",
+        "bounce": "t_bounce",
+        "ctr_min": "CTR_min",
+        "ageing": "CTR ageing",
+        "i_f": "I_F,min",
+        "dark_current": "dark current",
+        "vce_sat": "V_CE(sat)",
+        "i_ol": "I_OL",
+        "v_ol": "V_OL",
+        "i_off": "I_off",
+    }
+)
+
+
+def _rating_stands(ref: str, key: str, text: str) -> Stands:
+    fix = f"field 'pullproof.{key}' on {ref}, or {key} in a part-library entry for it"
+    return Stands(ref, "", RATING_QUANTITY.get(key, key), text, "default", fix)
+
+
+def _text(q: Any) -> str:
+    """A default as text: "50 mA", "0.4 V", "50 %" for a ratio."""
+    unit = f"{q.units:~P}"
+    if not unit:
+        return f"{float(q.magnitude) * 100:g} %"
+    return format_si(float(q.to_base_units().magnitude), unit, sig=3)
 
 
 def _resistor(part: Part, rules: Rules) -> tuple[ResistorInfo, tuple[Missing, ...]]:
@@ -456,19 +507,32 @@ def _resistor(part: Part, rules: Rules) -> tuple[ResistorInfo, tuple[Missing, ..
     if power is None and text and text.power is not None:
         power = Sourced(text.power, value_src)
     rating = SIZES.get(size)
-    if power is None and rating is not None:
-        power = _default(
-            Q_(rating.power, "W"), f"rating of size {size}", rating.note, rating.status
-        )
+    # a stated rating beats one assumed from the size; "array" rates an array's elements
+    rated_as = size or ("array" if len(part.pins) > 2 else "")
     if power is None:
-        power = rules.get("resistor.power")
+        power = rules.for_size("resistor.power", rated_as)
+    if power is None and rating is not None:
+        fix = f"field 'Power' on {part.ref}, or resistor.power in the rules"
+        shown = f"{format_si(rating.power, 'W', sig=3)} ({size} size)"
+        power = _default(
+            Q_(rating.power, "W"), f"rating of size {size}", rating.note, rating.status,
+            Stands(part.ref, "", "power rating", shown, "default", fix),
+        )  # fmt: skip
     if power is None:
         hint = "add field 'Power' (e.g. 0.1W), a chip footprint, or resistor.power in the rules"
         missing.append(Missing(f"power rating of {part.ref}", part.ref, hint))
     wv = _read_field(part, "pullproof.working_voltage", parse_voltage)
+    if wv is None:
+        wv = rules.for_size("resistor.working_voltage", rated_as)
     if wv is None and rating is not None and rating.working_voltage is not None:
+        fix = (
+            f"field 'pullproof.working_voltage' on {part.ref}, or resistor.working_voltage "
+            "in the rules"
+        )
+        shown = f"{rating.working_voltage:g} V ({size} size)"
         wv = _default(Q_(rating.working_voltage, "V"), f"working voltage of size {size}",
-                      rating.note, rating.status)  # fmt: skip
+                      rating.note, rating.status,
+                      Stands(part.ref, "", "working voltage", shown, "default", fix))  # fmt: skip
     role = (part.field("pullproof.role") or "").strip().lower()
     if role not in ("", "pull", "skip"):
         raise ValueParseError(role, expected="pull or skip", field="pullproof.role", part=part.ref)
@@ -534,7 +598,8 @@ def _ratings(part: Part, entry: LibraryEntry | None, kind: PartKind) -> Ratings:
                 Provenance(Origin.VALUE, f"Value of {part.ref}", Status.USER),
             )
     for key, (value, reason, status) in _DEFAULTS.get(kind, {}).items():
-        values.setdefault(key, _default(value, f"{kind.value} {key}", reason, status))
+        stands = _rating_stands(part.ref, key, _text(value))
+        values.setdefault(key, _default(value, f"{kind.value} {key}", reason, status, stands))
     return Ratings(MappingProxyType(values))
 
 
@@ -591,7 +656,9 @@ def resolve_part(part: Part, library: PartLibrary, rules: Rules) -> PartInfo:
         if overrides:
             model = model.with_overrides(overrides)
     none = _no_internal_pull(part, entry, name if model is not None else "")
-    return PartInfo(part.ref, kind, name, model, pins, None, ratings, tuple(missing), none)
+    return PartInfo(
+        part.ref, kind, name, model, pins, None, ratings, tuple(missing), none, entry is not None
+    )
 
 
 def _no_internal_pull(part: Part, entry: LibraryEntry | None, model_name: str) -> str:

@@ -3,7 +3,15 @@
 from __future__ import annotations
 
 from ..eseries import format_ohms
-from ..results import AcceptanceMark, Changes, Finding, NetworkResult, ReviewResult, Verdict
+from ..results import (
+    AcceptanceMark,
+    Basis,
+    Changes,
+    Finding,
+    NetworkResult,
+    ReviewResult,
+    Verdict,
+)
 
 __all__ = ["changes_table", "finding_line", "network_line", "review_table"]
 
@@ -21,11 +29,13 @@ def _value(r: NetworkResult) -> str:
     return f"{format_ohms(res.ohms.magnitude('ohm'))} ±{tol * 100:g}%"
 
 
-def _verdict(verdict: Verdict, mark: AcceptanceMark | None) -> str:
+def _verdict(verdict: Verdict, mark: AcceptanceMark | None, assumed: bool = False) -> str:
+    """``PASS``, ``PASS (assumed)``, ``MARGINAL (assumed, accepted)`` …"""
+    tags = ["assumed"] if assumed else []
+    if mark is not None:
+        tags.append("accepted" if mark.holds else "acceptance lapsed")
     word = verdict.value.upper()
-    if mark is None:
-        return word
-    return f"{word} (accepted)" if mark.holds else f"{word} (acceptance lapsed)"
+    return f"{word} ({', '.join(tags)})" if tags else word
 
 
 def _accepted_line(what: str, mark: AcceptanceMark) -> str:
@@ -53,7 +63,7 @@ def network_line(r: NetworkResult) -> str:
     n = r.network
     return (
         f"{','.join(n.resistor.refs)} ({_value(r)}) on {n.net}, {n.direction.value} to "
-        f"{n.rail.name}: {_verdict(r.verdict, r.accepted)}, {r.reason}"
+        f"{n.rail.name}: {_verdict(r.verdict, r.accepted, r.basis is Basis.ASSUMED)}, {r.reason}"
     )
 
 
@@ -104,7 +114,7 @@ def review_table(result: ReviewResult) -> str:
                     _value(r),
                     f"{n.direction.value} {n.rail.name}",
                     _window(r),
-                    _verdict(r.verdict, r.accepted),
+                    _verdict(r.verdict, r.accepted, r.basis is Basis.ASSUMED),
                     r.reason,
                 ]
             )
@@ -114,7 +124,7 @@ def review_table(result: ReviewResult) -> str:
     if result.findings:
         out.append("\nfindings:\n")
         for f in sorted(result.findings, key=lambda f: (-f.severity.rank, f.net)):
-            word = _verdict(f.severity, f.accepted)
+            word = _verdict(f.severity, f.accepted, bool(f.assumed))
             out.append(f"  {word:10} {finding_line(f)}\n")
     if result.skipped:
         out.append("\nnot judged as logic pulls:\n")
@@ -138,6 +148,12 @@ def review_table(result: ReviewResult) -> str:
     summary = ", ".join(f"{k} {v}" for k, v in sorted(counts.items())) or "none"
     held = sum(1 for _, m in marks if m is not None and m.holds)
     tail = f"; {held} accepted" if held else ""
+    assumed = sum(1 for r in result.networks if r.basis is Basis.ASSUMED)
+    if assumed:
+        tail += (
+            f"; {assumed} rest on assumed values ('pullproof parts {result.root}' lists the "
+            "numbers to confirm)"
+        )
     out.append(
         f"\n{len(result.networks)} networks ({summary}); {len(result.findings)} findings{tail}\n"
     )

@@ -1,4 +1,4 @@
-"""The ``pullproof.review/1`` JSON document (see README, "JSON output")."""
+"""The ``pullproof.review/2`` JSON document (see README, "JSON output")."""
 
 from __future__ import annotations
 
@@ -9,6 +9,8 @@ from ..network import Missing
 from ..provenance import Sourced
 from ..results import (
     AcceptanceMark,
+    Assumption,
+    Basis,
     Bound,
     Changes,
     Check,
@@ -21,7 +23,7 @@ from ..results import (
 
 __all__ = ["SCHEMA", "review_json"]
 
-SCHEMA = "pullproof.review/1"
+SCHEMA = "pullproof.review/2"
 
 
 def _num(s: Sourced | None, unit: str) -> float | None:
@@ -31,18 +33,38 @@ def _num(s: Sourced | None, unit: str) -> float | None:
     return x if math.isfinite(x) else None  # an unknown value is null, never NaN
 
 
-def _term(t: Term) -> dict[str, Any]:
-    q = t.value.value
+def _source(s: Sourced) -> dict[str, str]:
     return {
-        "symbol": t.symbol,
-        "value": float(q.magnitude) if hasattr(q, "magnitude") else float(q),
-        "unit": f"{q.units:~P}" if hasattr(q, "units") else "",
-        "source": {
-            "origin": t.value.source.origin.value,
-            "where": t.value.source.where,
-            "status": t.value.source.status.value,
-            "reason": t.value.source.reason,
-        },
+        "origin": s.source.origin.value,
+        "where": s.source.where,
+        "status": s.source.status.value,
+        "reason": s.source.reason,
+    }
+
+
+def _quantity(s: Sourced) -> tuple[float, str]:
+    q = s.value
+    value = float(q.magnitude) if hasattr(q, "magnitude") else float(q)
+    return value, f"{q.units:~P}" if hasattr(q, "units") else ""
+
+
+def _term(t: Term) -> dict[str, Any]:
+    value, unit = _quantity(t.value)
+    return {"symbol": t.symbol, "value": value, "unit": unit, "source": _source(t.value)}
+
+
+def _assumption(a: Assumption) -> dict[str, Any]:
+    value, unit = _quantity(a.value)
+    return {
+        "part": a.part,
+        "pin": a.pin,
+        "quantity": a.quantity,
+        "value": value,
+        "unit": unit,
+        "text": a.text,
+        "class": a.basis,
+        "fix": a.fix,
+        "source": _source(a.value),
     }
 
 
@@ -143,6 +165,8 @@ def _network(r: NetworkResult) -> dict[str, Any]:
         "checks": [_check(c) for c in r.checks],
         "missing": [_missing(m) for m in r.missing],
         "acceptance": _acceptance(r.accepted),
+        "basis": r.basis.value,
+        "assumptions": [_assumption(a) for a in r.assumptions],
     }
 
 
@@ -154,6 +178,8 @@ def _finding(f: Finding) -> dict[str, Any]:
         "refs": list(f.refs),
         "message": f.message,
         "acceptance": _acceptance(f.accepted),
+        "basis": (Basis.ASSUMED if f.assumed else Basis.DATA).value,
+        "assumed": list(f.assumed),
     }
 
 
@@ -189,12 +215,14 @@ def _changes(c: Changes | None) -> dict[str, Any] | None:
 
 
 def review_json(result: ReviewResult) -> dict[str, Any]:
-    """The review as a JSON-ready dict following schema ``pullproof.review/1``."""
+    """The review as a JSON-ready dict following schema ``pullproof.review/2``."""
     return {
         "schema": SCHEMA,
         "root": result.root,
+        "assume": result.assume,
         "worst": result.worst.value,
         "gate": result.gate.value,
+        "assumed": result.assumed,
         "warnings": list(result.warnings),
         "networks": [_network(r) for r in result.networks],
         "findings": [_finding(f) for f in result.findings],

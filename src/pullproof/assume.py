@@ -1,0 +1,334 @@
+"""Stated stand-ins for what nothing in the design says: which assumption applies, and where.
+
+The rules key ``assume`` names the input class (``cmos`` by default, ``lvttl``) or
+``none`` (``--strict``). While it is on, detection stands in, each time as an assumption
+(origin ``assumed`` with a :class:`~pullproof.provenance.Stands` naming part, pin and
+quantity):
+
+* a logic input whose part has no data is judged with the input class at the part's own
+  supply, and the class fills any number a family, part library or fields leave out;
+* an open-drain or open-collector output without ratings gets the driver class;
+* a rail named for USB bus power gets the USB figures; another rail whose name states no
+  voltage (and that the rules do not list) is judged over the supply range every part it
+  powers with known data accepts, at both ends;
+* an element of a resistor array without a rating gets the array-element rating.
+
+With ``assume = "none"`` none of this happens, and numbers other sources mark ``assumed``
+(a family's stand-in leakage, a part-library value not yet confirmed) are left out, so a
+review is exactly as strict as one without any stand-in.
+"""
+
+from __future__ import annotations
+
+import fnmatch
+import re
+from collections.abc import Callable, Mapping
+from dataclasses import fields, replace
+from typing import Any
+
+from .circuit import Circuit, Net, Part, PartPin
+from .families.classes import AssumptionClasses, load_classes
+from .families.loader import InputModel
+from .families.match import PartInfo, PartKind, family_from_name
+from .network import InputLevels, Rail
+from .provenance import Origin, Provenance, Sourced, Stands, Status
+from .rules import RailSpec, Rules
+from .supplies import read_supply_name
+from .units import Q_, format_si
+
+__all__ = ["CLASS_RANGE", "POWER_PIN_NAMES", "Assumer", "io_supply", "stand"]
+
+#: The basis of a rail judged over the input class's supply range (nothing powered has data).
+CLASS_RANGE = "rail range (input class)"
+
+POWER_PIN_NAMES = ("VCC*", "VDD*", "IOVDD*", "DVDD*", "VIO*", "V+", "VDDIO*", "VCCIO*", "VL")
+# Supply pins that feed a part's I/O pins, and those that feed something else (core, analog,
+# USB, a regulator's input): common practice in how parts name their supply pins.
+_IO_SUPPLY = re.compile(r"(?i)(IO|VCCO|VDDQ|OVDD|^VL$|^V_?LOGIC)")
+_OTHER_SUPPLY = re.compile(
+    r"(?i)(CORE|INT|DVDD|AVDD|AVCC|VDDA|ANA|ADC|VREF|USB|VREG|VIN|PLL|RTC|BAT)"
+)
+_BANK = re.compile(r"(?i)(?:VCCO|VCCIO|VDDIO|IOVDD|VIO)_?(\d+)$")
+_USB_WORDS = frozenset({"VBUS", "VUSB", "USB"})
+_LEVEL_KEYS = ("vih_min", "vil_max", "i_high", "i_low", "c_in")
+
+
+def stand(value: Sourced, part: str, pin: str) -> Sourced:
+    """``value`` with the part and pin it stands for (an assumed value only); its written
+    text is filled in from the value when the source gave none."""
+    src = value.source
+    if src.origin is not Origin.ASSUMED:
+        return value
+    old = src.stands or Stands("", "", src.where, "", "default", src.reason)
+    text = old.text or _text(value)
+    new = replace(old, part=old.part or part, pin=old.pin or pin, text=text)
+    return Sourced(value.value, replace(src, stands=new))
+
+
+def _text(value: Sourced) -> str:
+    q = value.value
+    if not hasattr(q, "units"):
+        return f"{q:g}"
+    unit = f"{q.units:~P}"
+    return format_si(float(q.to_base_units().magnitude), _SYMBOL.get(unit, unit), sig=3)
+
+
+_SYMBOL = {"V": "V", "A": "A", "F": "F", "W": "W", "Ω": "Ω", "s": "s"}
+
+
+def _is_power(pin: PartPin) -> bool:
+    name = pin.name.upper()
+    return pin.type == "power_in" or any(fnmatch.fnmatchcase(name, p) for p in POWER_PIN_NAMES)
+
+
+def _number(text: str) -> int | None:
+    return int(text) if text.isdigit() else None
+
+
+def io_supply(
+    circuit: Circuit, part: Part, pin: str, spec_of: Callable[[Net], RailSpec | None]
+) -> list[RailSpec]:
+    """The rails on a part's power-input pins, the likeliest supply of ``pin`` first.
+
+    One rail: it. Several: a supply numbered for the pin's bank (``VCCO_34`` for
+    ``IO_L1P_34``), then a supply named for I/O (``IOVDD``, ``VDDIO``, ``VCCO``), then the
+    others except core, analog, USB and regulator-input supplies, each group nearest the pin
+    by pin number (a package's bank sits beside its supply pins)."""
+    me = part.pin(pin)
+    name = me.name.upper() if me is not None else ""
+    where = _number(pin)
+    found: dict[str, tuple[int, int, RailSpec]] = {}
+    for p in part.pins:
+        if not _is_power(p):
+            continue
+        net = circuit.net_of(part.ref, p.number)
+        spec = spec_of(net) if net is not None else None
+        if spec is None or spec.ground:
+            continue
+        bank = _BANK.search(p.name)
+        if bank is not None and name.endswith(f"_{bank.group(1)}"):
+            rank = 0
+        elif _IO_SUPPLY.search(p.name):
+            rank = 1
+        elif _OTHER_SUPPLY.search(p.name):
+            rank = 3
+        else:
+            rank = 2
+        n = _number(p.number)
+        distance = abs(n - where) if n is not None and where is not None else 1 << 30
+        best = found.get(spec.name)
+        if best is None or (rank, distance) < best[:2]:
+            found[spec.name] = (rank, distance, spec)
+    return [spec for _, _, spec in sorted(found.values(), key=lambda t: t[:2])]
+
+
+class Assumer:
+    """Decides, for one review, which assumption stands in for each unknown number."""
+
+    def __init__(
+        self,
+        circuit: Circuit,
+        infos: Mapping[str, PartInfo],
+        rules: Rules,
+        spec_of: Callable[[Net], RailSpec | None],
+        classes: AssumptionClasses | None = None,
+    ) -> None:
+        self.circuit = circuit
+        self.infos = infos
+        self.rules = rules
+        self.classes = classes or load_classes()
+        self.word = rules.assume
+        self.enabled = self.word != "none"
+        self.spec_of = spec_of
+        self._powered: dict[str, list[str]] | None = None
+
+    # ------------------------------------------------------------------ inputs
+    def input_class(self, word: str = "") -> InputModel | None:
+        """The input model of class ``word`` (default: the rules' ``assume``)."""
+        cls = self.classes.inputs.get(word or self.word)
+        return None if cls is None or not self.enabled else cls.model()
+
+    def class_model(self, part: Part) -> InputModel | None:
+        """The class model for an input whose part has no data, or None: assumptions are
+        off, or the part is a logic series the name identifies but we hold no data for (a
+        CMOS stand-in would contradict what its name says, e.g. a bipolar 74ALS)."""
+        found = family_from_name(part.value) or family_from_name(part.lib_id.split(":")[-1])
+        if found is not None and self.infos[part.ref].kind is PartKind.LOGIC:
+            return None
+        return self.input_class()
+
+    def complete(
+        self,
+        levels: InputLevels,
+        ref: str,
+        pin: str,
+        other_supply: bool,
+        has: frozenset[str] = frozenset(),
+    ) -> InputLevels:
+        """One corner of an input with every assumed value tagged with its part and pin:
+        gaps filled from the input class when assumptions are on, assumed values left out
+        when they are off. A gap is a number the input's data never give (``has`` lists
+        those they give at some corner: outside its table a family stays silent, it is not
+        filled); V_in,max is filled only for an input on another supply, which needs it."""
+        changes: dict[str, Any] = {}
+        stand_in = self.input_class()
+        fill = stand_in.at(levels.vdd) if stand_in is not None else None
+        wanted = (*_LEVEL_KEYS, "v_in_max") if other_supply else _LEVEL_KEYS
+        keys = tuple(k for k in wanted if k not in has)
+        for f in fields(levels):
+            value = getattr(levels, f.name)
+            if f.name == "vdd":
+                continue
+            if value is None and fill is not None and f.name in keys:
+                value = getattr(fill, f.name)
+            if isinstance(value, Sourced) and value.source.origin is Origin.ASSUMED:
+                value = stand(value, ref, pin) if self.enabled else None
+            changes[f.name] = value
+        return replace(levels, **changes)
+
+    # ------------------------------------------------------------------ drivers, arrays
+    def driver(self, values: Mapping[str, Sourced | None], ref: str, pin: str) -> dict[str, Any]:
+        """An open-drain output's V_OL, I_OL and off-state leakage, gaps from the driver class."""
+        cls = self.classes.drivers.get("open-drain")
+        out: dict[str, Any] = {}
+        for key, value in values.items():
+            if value is not None and value.source.origin is Origin.ASSUMED and not self.enabled:
+                value = None  # a part-library value not yet confirmed: left out when strict
+            if value is None and self.enabled and cls is not None:
+                value = cls.values.get(key)
+            out[key] = None if value is None else stand(value, ref, pin)
+        return out
+
+    def array_rating(self, key: str, ref: str) -> Sourced | None:
+        """The assumed rating (power, working_voltage) of an element of array ``ref``."""
+        cls = self.classes.resistors.get("array-element")
+        if not self.enabled or cls is None or key not in cls.values:
+            return None
+        return stand(cls.values[key], ref, "")
+
+    # ------------------------------------------------------------------ rails
+    def usb(self, name: str) -> bool:
+        """True for a rail named for USB bus power that the rules do not list."""
+        bare = name.rsplit("/", 1)[-1]
+        if not self.enabled or bare in self.rules.rails or read_supply_name(bare) is None:
+            return False
+        words = re.split(r"[_\-\s+]+", bare.upper())
+        return any(w.rstrip("0123456789") in _USB_WORDS for w in words)
+
+    def usb_rail(self, name: str) -> Rail | None:
+        cls = self.classes.rails.get("usb-bus")
+        if cls is None:
+            return None
+        v = cls.values
+        text = f"{_text(v['min'])}–{_text(v['max'])}, nominal {_text(v['nominal'])}"
+        fix = (
+            f'[rails] {name} = {{ nominal = "{cls.numbers["nominal"].text}", min = '
+            f'"{cls.numbers["min"].text}", max = "{cls.numbers["max"].text}" }} (your supply)'
+        )
+        tagged = [self._rail_value(v[k], name, text, "usb-bus", fix) for k in ("min", "max")]
+        return Rail(name, tagged[0], tagged[1], self._rail_value(v["nominal"], name, text,
+                                                                 "usb-bus", fix))  # fmt: skip
+
+    def _rail_value(self, value: Sourced, name: str, text: str, basis: str, fix: str) -> Sourced:
+        stands = Stands("", "", f"voltage of rail {name}", text, basis, fix)
+        return Sourced(value.value, replace(value.source, stands=stands))
+
+    def ranged_rail(self, name: str) -> Rail | None:
+        """A rail of unknown voltage, judged over the supply range every part it powers with
+        known data accepts. When none of them has data, the parts are judged with the input
+        class, and the rail over the class's supply range. None: assumptions are off, the
+        rail powers nothing, or its parts accept no common supply."""
+        if not self.enabled:
+            return None
+        powered = self._powered_by().get(name, [])
+        spans = []
+        for ref in powered:
+            model = self.infos[ref].inputs
+            if model is None or model.family.supply == (0.0, 0.0):
+                continue  # no data, or fields only (which state no supply range)
+            lo, hi = model.supply_range
+            if lo.source.origin is Origin.ASSUMED:
+                continue  # an assumed range is no evidence of the rail's voltage
+            spans.append((ref, self.infos[ref].family, lo, hi))
+        why = "the supply range every part it powers with known data accepts"
+        if not spans:
+            judged = [
+                r for r in powered
+                if (p := self.circuit.part(r)) is not None and self.class_model(p) is not None
+                and self.infos[r].kind in (PartKind.LOGIC, PartKind.MCU, PartKind.OTHER)
+            ]  # fmt: skip
+            stand_in = self.input_class()
+            if not judged or stand_in is None:
+                return None
+            lo, hi = stand_in.supply_range
+            spans = [(r, f"class {self.word}", lo, hi) for r in judged]
+            why = (
+                f"none of the parts it powers has data, so they are judged with input class "
+                f"{self.word}, and the rail over that class's supply range"
+            )
+        v_lo = max(s[2].magnitude("V") for s in spans)
+        v_hi = min(s[3].magnitude("V") for s in spans)
+        if v_lo > v_hi:
+            return None
+        who = ", ".join(
+            f"{ref} ({fam} {s_lo.magnitude('V'):g}–{s_hi.magnitude('V'):g} V)"
+            for ref, fam, s_lo, s_hi in spans
+        )
+        status = min((s[2].source.status for s in spans), key=_STATUS_ORDER.index)
+        nominal = (v_lo + v_hi) / 2
+        text = f"{v_lo:g}–{v_hi:g} V"
+        reason = (
+            f"the name states no voltage and the rules do not list it: judged at both ends of "
+            f"{text}, {why}: {who}"
+        )
+        fix = (
+            f'[rails] {name} = {{ nominal = "{nominal:g}V", min = "{v_lo:g}V", max = '
+            f'"{v_hi:g}V" }} (or the voltage the board uses)'
+        )
+        basis = "rail range" if why.startswith("the supply range") else CLASS_RANGE
+        stands = Stands("", "", f"voltage of rail {name}", text, basis, fix)
+        src = Provenance(Origin.ASSUMED, f"assumed voltage of rail {name}", status, reason, stands)
+        return Rail(name, Sourced(Q_(v_lo, "V"), src), Sourced(Q_(v_hi, "V"), src),
+                    Sourced(Q_(nominal, "V"), src))  # fmt: skip
+
+    def follows(self, supply: Rail, rail: Rail) -> Sourced:
+        """The assumption that ``supply`` (an input's, voltage unknown) runs at the pull
+        rail's voltage: the value a verdict that judges them as one rests on."""
+        fix = f'[rails] {supply.name} = {{ follows = "{rail.name}" }} (if it does)'
+        stands = Stands("", "", f"voltage of rail {supply.name}", f"follows {rail.name}",
+                        CLASS_RANGE, fix)  # fmt: skip
+        reason = (
+            f"the voltages of {supply.name} and {rail.name} are both unknown: judged as one "
+            "supply rather than at the worst pairing of two unknowns"
+        )
+        src = Provenance(Origin.ASSUMED, f"assumed: {supply.name} follows {rail.name}",
+                         Status.DEFAULT, reason, stands)  # fmt: skip
+        return Sourced(rail.v_nom.value, src)
+
+    @staticmethod
+    def class_ranged(rail: Rail) -> bool:
+        """True for a rail judged over the input class's range (its voltage is unknown)."""
+        stands = rail.v_min.source.stands
+        return stands is not None and stands.basis == CLASS_RANGE
+
+    def _powered_by(self) -> dict[str, list[str]]:
+        """Rail name → the parts with a power-input pin on it."""
+        if self._powered is None:
+            powered: dict[str, list[str]] = {}
+            for part in self.circuit.parts:
+                for p in part.pins:
+                    if not _is_power(p):
+                        continue
+                    net = self.circuit.net_of(part.ref, p.number)
+                    spec = self.spec_of(net) if net is not None else None
+                    if spec is not None and not spec.ground:
+                        refs = powered.setdefault(spec.name, [])
+                        if part.ref not in refs:
+                            refs.append(part.ref)
+            self._powered = powered
+        return self._powered
+
+
+_STATUS_ORDER = [
+    Status.FROM_MEMORY, Status.DEFAULT, Status.COMMON_PRACTICE, Status.USER, Status.CONFIRMED,
+]  # fmt: skip
