@@ -366,6 +366,7 @@ class Resolver:
             edge_time_max=nr.edge_time,
             i2c_mode=nr.i2c_mode,
             bus_capacitance=nr.bus_capacitance,
+            wiring_capacitance=nr.capacitance,
         )
 
     # ------------------------------------------------------------------ the network
@@ -396,6 +397,7 @@ class Resolver:
                 )
             )
         opposite = self._opposite(direction, switches, drivers)
+        net_rules = self.net_rules(site.net.name, opposite if rail.ground and opposite else rail)
         mains = self.mains_reason(site)
         return PullNetwork(
             net=site.net.name,
@@ -404,7 +406,7 @@ class Resolver:
             rail=rail,
             resistor=resistor,
             inputs=inputs,
-            rules=self.net_rules(site.net.name, opposite if rail.ground and opposite else rail),
+            rules=net_rules,
             switches=switches,
             drivers=drivers,
             capacitors=caps,
@@ -412,6 +414,7 @@ class Resolver:
             mains_adjacent=bool(mains),
             mains_reason=mains,
             missing=tuple(missing),
+            notes=_capacitance_notes(net_rules),
         )
 
     def _opposite(
@@ -427,3 +430,13 @@ class Resolver:
             if s.pulls_against:
                 return self._rail(s.other_side)
         return None
+
+
+def _capacitance_notes(rules: NetworkRules) -> tuple[str, ...]:
+    """Say so when a stated wiring capacitance is not added (an I2C bus figure covers it)."""
+    if rules.wiring_capacitance is not None and rules.bus_capacitance is not None:
+        return (
+            f"the wiring capacitance from {rules.wiring_capacitance.source.where} is not added: "
+            "on an I2C line the bus capacitance stands for the pins and the wiring together",
+        )
+    return ()

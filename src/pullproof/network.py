@@ -174,7 +174,8 @@ class NetworkRules:
     bounce_time: Sourced | None = None  # s
     edge_time_max: Sourced | None = None  # s, slowest allowed edge through the undefined band
     i2c_mode: str = ""  # "", "standard", "fast", "fast-plus" when the net is an I2C line
-    bus_capacitance: Sourced | None = None  # F
+    bus_capacitance: Sourced | None = None  # F, an I2C bus: pins and wiring together
+    wiring_capacitance: Sourced | None = None  # F, wiring or cable on any net (rules)
     # ratio: a band closer than this to a binding hard edge is "marginal" (evaluate: 10 %)
     margin_ratio: Sourced | None = None
 

@@ -86,8 +86,9 @@ KEYS: Mapping[str, Key] = MappingProxyType(
     }
 )
 _NET_KEYS = frozenset(
-    {"match", "margin", "i2c", "bus_capacitance", "bounce", "edge_time", "current_budget"}
-)
+    {"match", "margin", "i2c", "bus_capacitance", "capacitance", "bounce", "edge_time",
+     "current_budget"}
+)  # fmt: skip
 _SECTIONS = frozenset({"resistor", "temperature", "preferred", "i2c"})
 _GROUNDS = ("GND", "GNDA", "GNDD", "GNDPWR", "GNDREF", "AGND", "DGND", "PGND", "VSS", "0V", "EARTH")
 _GROUND_PATTERNS = ("GND*", "*_GND", "VSS*", "EARTH*", "0V", "CHASSIS*")
@@ -114,6 +115,7 @@ class NetRules:
     bounce: Sourced | None
     edge_time: Sourced | None
     current_budget: Sourced | None
+    capacitance: Sourced | None = None  # F, wiring or cable on any net ([[net]] capacitance)
 
 
 @dataclass(frozen=True)
@@ -180,6 +182,7 @@ class Rules:
             "bounce": self.values["bounce"],
             "edge_time": self.values["edge_time"],
             "current_budget": self.values["current_budget"],
+            "capacitance": None,  # only a [[net]] entry states a net's wiring capacitance
         }
         name = _bare(net_name).upper()
         if not merged["i2c"] and re.search(r"(^|[^A-Z])(I2C|SDA|SCL)", name):
@@ -194,6 +197,7 @@ class Rules:
             bounce=merged["bounce"],
             edge_time=merged["edge_time"],
             current_budget=merged["current_budget"],
+            capacitance=merged["capacitance"],
         )
 
 
@@ -426,6 +430,7 @@ _NET_KINDS = MappingProxyType(
         "margin": "margin",
         "i2c": "i2c",
         "bus_capacitance": "capacitance",
+        "capacitance": "capacitance",
         "bounce": "time",
         "edge_time": "time",
         "current_budget": "current",
