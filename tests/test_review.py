@@ -302,6 +302,38 @@ def test_wiring_capacitance_is_not_added_to_an_i2c_bus_figure(tmp_path: Path) ->
     assert note.startswith("the wiring capacitance from rules key net.capacitance")
 
 
+@pytest.mark.parametrize(
+    ("span", "leakage", "which"),
+    [
+        # JESD7A 74HC input leakage: ±0.1 µA at 25 °C, ±1.0 µA over temperature (from memory)
+        (("25°C", "25°C"), 0.1e-6, "the 25 °C figure"),
+        (("0°C", "70°C"), 1.0e-6, "the figure over temperature"),
+        (("25°C", "40°C"), 1.0e-6, "the figure over temperature"),
+    ],
+)
+def test_leakage_figure_follows_the_temperature_span(
+    tmp_path: Path, span: tuple[str, str], leakage: float, which: str
+) -> None:
+    from builder import Pin
+    from placer import LabelPlacer
+
+    bench = LabelPlacer(frozenset({"+2V", "GND"}))
+    bench.resistor("R1", "1M", "+2V", "PROBE")
+    gate = (Pin("1", (-7.62, 2.54), "input"), Pin("3", (7.62, 0), "output"))
+    bench.place("U1", "74xx:74HC00", gate, "74HC00", {"1": "PROBE"})
+    (tmp_path / "pullproof.toml").write_text(
+        f'margin = "0V"\n[rails]\n"+2V" = {{ nominal = "2V", tolerance = "0%" }}\n'
+        f'[temperature]\nmin = "{span[0]}"\nmax = "{span[1]}"\n',
+        encoding="utf-8",
+    )
+    (r,) = review(bench.b.write(tmp_path / "probe.kicad_sch")).networks
+    b = next(b for b in r.bounds if b.constraint == "high-level-holds")
+    # REFERENCES Example 1 and its variant: (2.0 − 1.5) V / I_IH (JESD7A levels, from memory)
+    assert b.ohms == pytest.approx(0.5 / leakage, rel=1e-9)
+    term = next(t for t in b.terms if t.symbol.startswith("I_high"))
+    assert which in term.value.source.reason
+
+
 # ------------------------------------------------------------------ selection
 
 

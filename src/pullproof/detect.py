@@ -11,7 +11,7 @@ from __future__ import annotations
 import fnmatch
 import re
 from collections.abc import Mapping
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 from .circuit import Circuit, Net, Part
 from .errors import ValueParseError
@@ -212,6 +212,8 @@ class Resolver:
                 )
             return InputOnNet(pin.ref, pin.pin, info.family, (), series_ohms=series,
                               series_ref=pin.via, missing=tuple(missing))  # fmt: skip
+        if self._at_room_temperature():
+            model = replace(model, room_temperature_only=True)
         pull = enabled_internal_pull(part)
         supply = self._supply_of(part)
         same = not rail.ground and (supply is None or supply.name == rail.name)
@@ -245,6 +247,13 @@ class Resolver:
             schmitt=model.schmitt,
             missing=tuple(missing),
         )
+
+    def _at_room_temperature(self) -> bool:
+        """True when the rules' temperature span stays at 25 °C, where families state input
+        currents of their own (JEDEC tables give 25 °C and over-temperature figures)."""
+        lo: float = self.rules.get("temperature.min").magnitude("degC")
+        hi: float = self.rules.get("temperature.max").magnitude("degC")
+        return abs(lo - 25.0) < 1e-9 and abs(hi - 25.0) < 1e-9
 
     # ------------------------------------------------------------------ switches, drivers
     def _far_rail(self, far_net: str) -> RailSpec | None:
