@@ -203,7 +203,11 @@ def test_empty_window_advice_and_missing_values_shown() -> None:
 def test_recommendation_lists_candidates_and_pick() -> None:
     html = render(sample_result(1))
     assert "<strong>E24 5.1\u00a0kΩ</strong> at ±5\u00a0% — closest to the geometric centre" in html
-    assert "45 E24 values whose whole band fits: 620\u00a0Ω, 680\u00a0Ω," in html
+    # every candidate carries its IEC 60062 code (470R is the standard's own example form)
+    assert (
+        "45 E24 values whose whole band fits: 620\u00a0Ω (<code>620R</code>), "
+        "680\u00a0Ω (<code>680R</code>)," in html
+    )
 
 
 def test_no_networks_still_renders() -> None:

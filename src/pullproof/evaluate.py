@@ -18,6 +18,7 @@ from .constraints import BUILTIN, Constraint, ConstraintPluginError
 from .constraints._common import band, dedupe, eng, pct
 from .errors import RulesError
 from .network import Missing, PullNetwork
+from .operating import operating_point, operating_points
 from .results import Bound, BoundKind, Check, NetworkResult, Recommendation, Verdict
 
 __all__ = ["DEFAULT_MARGIN_RATIO", "OPEN_BOTTOM_OHMS", "OPEN_TOP_OHMS", "evaluate", "recommend"]
@@ -83,6 +84,7 @@ def evaluate(
         checks=checks,
         advice=advice,
         missing=missing,
+        operating=operating_point(network),
     )
 
 
@@ -272,4 +274,5 @@ def recommend(
         pick,
         rules.policy,
         f"{eng(pick, 'Ω')} is {why}{note}.",
+        operating_points(network, cands),
     )

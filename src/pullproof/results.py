@@ -17,8 +17,10 @@ __all__ = [
     "Bound",
     "BoundKind",
     "Check",
+    "Figure",
     "Finding",
     "NetworkResult",
+    "OperatingPoint",
     "Recommendation",
     "ReviewResult",
     "Severity",
@@ -103,6 +105,40 @@ class Check:
 
 
 @dataclass(frozen=True)
+class Figure:
+    """One number of an operating point, how it was computed, and from what.
+
+    ``value`` is None when it cannot be computed: ``note`` then says why, or ``missing``
+    names the values to add. Otherwise ``note`` adds what a reader needs to use it.
+    """
+
+    symbol: str  # "I_max", "P", "V_idle", "t_edge", "t_r"
+    value: Sourced | None
+    formula: str  # "I_max = V_max / R_lo"
+    substituted: str  # "(5.25 V − 0 V) / 9.5 kΩ"
+    terms: tuple[Term, ...]
+    note: str = ""
+    missing: tuple[Missing, ...] = ()
+
+
+@dataclass(frozen=True)
+class OperatingPoint:
+    """What the line does at one resistance over its whole band (see :mod:`pullproof.operating`)."""
+
+    ohms: float  # the nominal value
+    band: tuple[float, float]  # (R_lo, R_hi) with the fitted part's tolerance and TCR
+    current_max: Figure  # while a switch or driver holds the line the other way
+    current_min: Figure  # the least current through a closed contact
+    power: Figure  # the resistor's dissipation meanwhile
+    idle: Figure  # the idle level at the net with the worst leakage
+    edge: Figure  # the slowest edge the pull makes, where the capacitance is known
+
+    @property
+    def figures(self) -> tuple[Figure, ...]:
+        return (self.current_max, self.current_min, self.power, self.idle, self.edge)
+
+
+@dataclass(frozen=True)
 class Recommendation:
     """E-series values whose whole band fits the window, and the pick."""
 
@@ -112,6 +148,7 @@ class Recommendation:
     pick: float | None
     policy: str  # "centre" or "low-current"
     reason: str  # one sentence on why the pick
+    points: tuple[OperatingPoint, ...] = ()  # the operating point of each candidate, in order
 
 
 @dataclass(frozen=True)
@@ -130,6 +167,7 @@ class NetworkResult:
     checks: tuple[Check, ...] = ()
     advice: tuple[str, ...] = ()  # for an empty window: what would relax each binding bound
     missing: tuple[Missing, ...] = ()
+    operating: OperatingPoint | None = None  # at the fitted value; None when not computed
 
 
 @dataclass(frozen=True)

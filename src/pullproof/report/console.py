@@ -3,7 +3,8 @@
 from __future__ import annotations
 
 from ..eseries import format_ohms
-from ..results import NetworkResult, ReviewResult
+from ..results import Figure, NetworkResult, OperatingPoint, ReviewResult
+from .format import format_quantity
 
 __all__ = ["review_table"]
 
@@ -32,6 +33,28 @@ def _table(rows: list[list[str]]) -> str:
     return "\n".join(lines) + "\n"
 
 
+def _fig(f: Figure) -> str:
+    if f.value is not None:
+        return format_quantity(f.value.value).replace("\u00a0", " ")
+    return "unknown" if f.missing else ""
+
+
+def operating_line(op: OperatingPoint) -> str:
+    """The operating point at one resistance in one short line."""
+    parts = []
+    if op.current_max.value is not None:
+        parts.append(f"{_fig(op.current_max)} and {_fig(op.power)} while held the other way")
+    elif op.current_max.missing:
+        parts.append("current while held unknown")
+    idle = _fig(op.idle)
+    if idle:
+        parts.append("idle level unknown" if idle == "unknown" else f"idles at {idle}")
+    edge = _fig(op.edge)
+    if edge:
+        parts.append(f"{'rise time' if op.edge.symbol == 't_r' else 'edge'} {edge}")
+    return "; ".join(parts) or "nothing to show"
+
+
 def review_table(result: ReviewResult) -> str:
     """Render the review for a terminal (plain text, no colour codes)."""
     out: list[str] = [f"pullproof review of {result.root}\n\n"]
@@ -52,6 +75,10 @@ def review_table(result: ReviewResult) -> str:
                 ]
             )
         out.append(_table(rows))
+        out.append("\noperating point at the fitted value (worst case over its band):\n")
+        for r in order:
+            if r.operating is not None:
+                out.append(f"  {r.network.net}: {operating_line(r.operating)}\n")
     else:
         out.append("no pull networks found\n")
     if result.findings:

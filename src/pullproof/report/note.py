@@ -27,9 +27,20 @@ from markupsafe import Markup
 
 from .. import __version__
 from ..errors import PullproofError
+from ..eseries import format_rkm
 from ..network import Missing, PullNetwork
 from ..provenance import Sourced
-from ..results import Bound, BoundKind, Check, Finding, NetworkResult, ReviewResult, Verdict
+from ..results import (
+    Bound,
+    BoundKind,
+    Check,
+    Figure,
+    Finding,
+    NetworkResult,
+    OperatingPoint,
+    ReviewResult,
+    Verdict,
+)
 from .chart import chart_text, window_chart
 from .format import (
     format_margin,
@@ -112,6 +123,40 @@ class CircuitRow:
 
 
 @dataclass(frozen=True)
+class PointRow:
+    """One row of the operating-point table: a resistance and its figures over its band."""
+
+    label: str  # "fitted R10", "E24 pick", or "" for another candidate
+    value: str  # "10 kΩ"
+    rkm: str  # "10K"
+    band: str  # "9.43 kΩ … 10.6 kΩ"
+    cells: tuple[str, ...]  # one per column, "—" where the figure does not apply
+    fitted: bool
+    pick: bool
+
+
+@dataclass(frozen=True)
+class FigureView:
+    """A column of the operating-point table: what it is, and its formula at the fitted value."""
+
+    title: str
+    formula: str
+    substituted: str
+    value: str
+    terms: tuple[TermRef, ...]
+    note: str
+    missing: tuple[Missing, ...]
+
+
+@dataclass(frozen=True)
+class OperatingView:
+    """The operating-point table of one network."""
+
+    columns: tuple[FigureView, ...]
+    rows: tuple[PointRow, ...]
+
+
+@dataclass(frozen=True)
 class NetworkView:
     """Everything the template shows for one network."""
 
@@ -124,6 +169,7 @@ class NetworkView:
     chart_text: str
     value_text: str
     refs_text: str
+    operating: OperatingView | None = None
 
 
 @dataclass(frozen=True)
@@ -319,10 +365,61 @@ def _rows(nr: NetworkResult, reg: _Registry) -> tuple[LimitRow, ...]:
     return tuple(out)
 
 
+_COLUMNS = (
+    "Current while held",
+    "Least contact current",
+    "Dissipation while held",
+    "Idle level",
+    "Edge time",
+)
+
+
+def _cell(f: Figure) -> str:
+    if f.value is not None:
+        return format_sourced(f.value)
+    return "unknown" if f.missing else "—"
+
+
+def _operating(nr: NetworkResult, reg: _Registry) -> OperatingView | None:
+    """The fitted value's operating point, then every recommended candidate's."""
+    op = nr.operating
+    if op is None:
+        return None
+    columns = []
+    for title, f in zip(_COLUMNS, op.figures, strict=True):
+        title = "Rise time (I2C)" if f.symbol == "t_r" else title
+        columns.append(
+            FigureView(title, f.formula, f.substituted, _cell(f),
+                       tuple(reg.ref(t.symbol, t.value) for t in f.terms), f.note, f.missing)
+        )  # fmt: skip
+    refs = "/".join(nr.network.resistor.refs)
+    rows = [_point_row(op, f"fitted {refs}", fitted=True, pick=False)]
+    rec = nr.recommendation
+    if rec is not None:
+        for p in rec.points:
+            pick = rec.pick is not None and p.ohms == rec.pick
+            label = f"{rec.series} pick" if pick else ""
+            rows.append(_point_row(p, label, fitted=False, pick=pick))
+    return OperatingView(tuple(columns), tuple(rows))
+
+
+def _point_row(op: OperatingPoint, label: str, *, fitted: bool, pick: bool) -> PointRow:
+    return PointRow(
+        label,
+        format_ohms(op.ohms),
+        format_rkm(op.ohms),
+        f"{format_ohms(op.band[0])} … {format_ohms(op.band[1])}",
+        tuple(_cell(f) for f in op.figures),
+        fitted,
+        pick,
+    )
+
+
 def _network_view(nr: NetworkResult, anchor: str) -> NetworkView:
     reg = _Registry()
     circuit = _circuit(nr.network, reg)
     rows = _rows(nr, reg)
+    operating = _operating(nr, reg)
     res = nr.network.resistor
     value = (
         f"{format_ohms(res.ohms.magnitude('ohm'))} ±{format_percent(res.tolerance.magnitude(''))}"
@@ -337,6 +434,7 @@ def _network_view(nr: NetworkResult, anchor: str) -> NetworkView:
         chart_text(nr),
         value,
         ", ".join(res.refs),
+        operating,
     )
 
 
@@ -455,6 +553,7 @@ def note_environment(directory: Path | None = None) -> jinja2.Environment:
         pct=format_percent,
         window=format_window,
         margin=format_margin,
+        rkm=format_rkm,
     )
     return env
 

@@ -5,9 +5,21 @@ from __future__ import annotations
 import math
 from typing import Any
 
+from ..eseries import format_rkm
 from ..network import Missing
 from ..provenance import Sourced
-from ..results import Bound, Check, Finding, NetworkResult, ReviewResult, Skipped, Term
+from ..results import (
+    Bound,
+    Check,
+    Figure,
+    Finding,
+    NetworkResult,
+    OperatingPoint,
+    Recommendation,
+    ReviewResult,
+    Skipped,
+    Term,
+)
 
 __all__ = ["SCHEMA", "review_json"]
 
@@ -21,18 +33,89 @@ def _num(s: Sourced | None, unit: str) -> float | None:
     return x if math.isfinite(x) else None  # an unknown value is null, never NaN
 
 
-def _term(t: Term) -> dict[str, Any]:
-    q = t.value.value
+def _quantity(s: Sourced) -> tuple[float, str]:
+    q = s.value
+    value = float(q.magnitude) if hasattr(q, "magnitude") else float(q)
+    return value, f"{q.units:~P}" if hasattr(q, "units") else ""
+
+
+def _source(s: Sourced) -> dict[str, str]:
     return {
-        "symbol": t.symbol,
-        "value": float(q.magnitude) if hasattr(q, "magnitude") else float(q),
-        "unit": f"{q.units:~P}" if hasattr(q, "units") else "",
-        "source": {
-            "origin": t.value.source.origin.value,
-            "where": t.value.source.where,
-            "status": t.value.source.status.value,
-            "reason": t.value.source.reason,
-        },
+        "origin": s.source.origin.value,
+        "where": s.source.where,
+        "status": s.source.status.value,
+        "reason": s.source.reason,
+    }
+
+
+def _term(t: Term) -> dict[str, Any]:
+    value, unit = _quantity(t.value)
+    return {"symbol": t.symbol, "value": value, "unit": unit, "source": _source(t.value)}
+
+
+def _figure(f: Figure) -> dict[str, Any]:
+    value, unit = _quantity(f.value) if f.value is not None else (None, "")
+    return {
+        "symbol": f.symbol,
+        "value": value if value is None or math.isfinite(value) else None,
+        "unit": unit,
+        "formula": f.formula,
+        "substituted": f.substituted,
+        "status": f.value.source.status.value if f.value is not None else None,
+        "note": f.note,
+        "terms": [_term(t) for t in f.terms],
+        "missing": [_missing(m) for m in f.missing],
+    }
+
+
+def _operating(op: OperatingPoint | None) -> dict[str, Any] | None:
+    if op is None:
+        return None
+    return {
+        "ohms": op.ohms,
+        "rkm": format_rkm(op.ohms),
+        "band_ohms": list(op.band),
+        "current_max": _figure(op.current_max),
+        "current_min": _figure(op.current_min),
+        "power": _figure(op.power),
+        "idle_level": _figure(op.idle),
+        "edge_time": _figure(op.edge),
+    }
+
+
+def _brief(op: OperatingPoint | None) -> dict[str, Any] | None:
+    """A candidate's operating point as numbers in base units (formulas and terms are those
+    of the network's own operating point, with the candidate's band)."""
+    if op is None:
+        return None
+    return {
+        "ohms": op.ohms,
+        "rkm": format_rkm(op.ohms),
+        "band_ohms": list(op.band),
+        "current_max_amps": _num(op.current_max.value, "A"),
+        "current_min_amps": _num(op.current_min.value, "A"),
+        "power_watts": _num(op.power.value, "W"),
+        "idle_volts": _num(op.idle.value, "V"),
+        "edge_seconds": _num(op.edge.value, "s"),
+    }
+
+
+def _recommendation(rec: Recommendation | None) -> dict[str, Any] | None:
+    if rec is None:
+        return None
+    points = dict(zip(rec.candidates, rec.points, strict=False))
+    return {
+        "series": rec.series,
+        "tolerance": rec.tolerance,
+        "candidates_ohms": list(rec.candidates),
+        "pick_ohms": rec.pick,
+        "policy": rec.policy,
+        "reason": rec.reason,
+        "pick_rkm": None if rec.pick is None else format_rkm(rec.pick),
+        "candidates": [
+            {"ohms": c, "rkm": format_rkm(c), "operating_point": _brief(points.get(c))}
+            for c in rec.candidates
+        ],
     }
 
 
@@ -101,19 +184,11 @@ def _network(r: NetworkResult) -> dict[str, Any]:
         "binding": list(r.binding),
         "advice": list(r.advice),
         "recommended_ohms": rec.pick if rec else None,
-        "recommendation": None
-        if rec is None
-        else {
-            "series": rec.series,
-            "tolerance": rec.tolerance,
-            "candidates_ohms": list(rec.candidates),
-            "pick_ohms": rec.pick,
-            "policy": rec.policy,
-            "reason": rec.reason,
-        },
+        "recommendation": _recommendation(rec),
         "bounds": [_bound(b) for b in r.bounds],
         "checks": [_check(c) for c in r.checks],
         "missing": [_missing(m) for m in r.missing],
+        "operating_point": _operating(r.operating),
     }
 
 
