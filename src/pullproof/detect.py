@@ -16,6 +16,7 @@ from dataclasses import dataclass, replace
 from .circuit import Circuit, Net, Part
 from .errors import ValueParseError
 from .families.match import PartInfo, PartKind
+from .hazard import Hazard, hazard_of
 from .network import (
     CapacitorOnNet,
     Direction,
@@ -101,6 +102,7 @@ class Resolver:
         self.infos = infos
         self.rules = rules
         self.nets = {n.name: n for n in circuit.nets}
+        self._hazards: dict[str, Hazard | None] = {}
 
     # ------------------------------------------------------------------ rails
     def rail_of(self, net: Net) -> RailSpec | None:
@@ -126,7 +128,7 @@ class Resolver:
         spec = self.rules.rail(name)
         if spec is None or spec.v_min is None or spec.v_max is None or spec.nominal is None:
             return None
-        return Rail(spec.name, spec.v_min, spec.v_max, spec.nominal, ground=spec.ground)
+        return Rail(spec.name, spec.v_min, spec.v_max, spec.nominal, ground=spec.ground, ac=spec.ac)
 
     def _ground(self) -> Rail:
         zero = Sourced(Q_(0.0, "V"), Provenance(Origin.SCHEMATIC, "ground net", Status.USER))
@@ -315,21 +317,36 @@ class Resolver:
         return CapacitorOnNet(pin.ref, farads, far.name if far else pin.far_net)
 
     # ------------------------------------------------------------------ mains
-    def mains_reason(self, site: PullSite) -> str:
-        """Why this network sits next to mains ("" when it does not)."""
-        if self.rules.is_mains(site.net.name):
-            return f"the net {site.net.name} matches a mains pattern"
+    def mains_reason(self, site: PullSite, rails: tuple[str, ...] = ()) -> str:
+        """Why this network sits next to mains or other hazardous voltage ("" when it does
+        not): its net is at it, its pull rail is, or a driver or switch part also connects
+        to a net that is (an optocoupler, a relay)."""
+        own = self._hazard(site.net.name)
+        if own is not None:
+            return own.reason
+        for name in rails:
+            h = hazard_of(self.rules, name, self.rules.rail(name))
+            if h is not None:
+                return f"the pull rail {name} {h.what}"
         for pin in (*site.drivers, *site.switches):
             part = self.circuit.part(pin.ref)
             if part is None:
                 continue
             for other in self._nets_near(part, site.net.name):
-                if self.rules.is_mains(other):
-                    return f"{pin.ref} also connects to the mains net {other}"
+                h = self._hazard(other)
+                if h is not None:
+                    return f"{pin.ref} also connects to {other}, which {h.what}"
         return ""
 
-    def _nets_near(self, part: Part, exclude: str) -> set[str]:
-        """Nets on the part's other pins, and one two-terminal part beyond them."""
+    def _hazard(self, name: str) -> Hazard | None:
+        if name not in self._hazards:
+            net = self.nets.get(name)
+            spec = self.rail_of(net) if net is not None else None
+            self._hazards[name] = hazard_of(self.rules, name, spec)
+        return self._hazards[name]
+
+    def _nets_near(self, part: Part, exclude: str) -> list[str]:
+        """Nets on the part's other pins, then those one two-terminal part beyond them."""
         first = {
             n.name
             for p in part.pins
@@ -339,8 +356,8 @@ class Resolver:
         for name in first:
             net = self.nets[name]
             spec = self.rail_of(net)
-            if spec is not None and not self.rules.is_mains(name):
-                continue  # a supply or ground reaches everything; mains is never beyond it
+            if spec is not None and self._hazard(name) is None:
+                continue  # a supply or ground reaches everything; a hazard is never beyond it
             for m in net.members:
                 other = self.circuit.part(m.ref)
                 if other is None or other.ref == part.ref or len(other.pins) != 2:
@@ -349,7 +366,7 @@ class Resolver:
                     far = self.circuit.net_of(other.ref, p.number)
                     if far is not None:
                         found.add(far.name)
-        return found
+        return sorted(first) + sorted(found - first)
 
     # ------------------------------------------------------------------ rules
     def net_rules(self, net: str, rail: Rail | None) -> NetworkRules:
@@ -407,7 +424,7 @@ class Resolver:
             )
         opposite = self._opposite(direction, switches, drivers)
         net_rules = self.net_rules(site.net.name, opposite if rail.ground and opposite else rail)
-        mains = self.mains_reason(site)
+        mains = self.mains_reason(site, tuple(sorted({r for _, r in pulls})))
         return PullNetwork(
             net=site.net.name,
             sheet=site.sheet,

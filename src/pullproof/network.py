@@ -52,6 +52,7 @@ class Rail:
     v_max: Sourced
     v_nom: Sourced
     ground: bool = False
+    ac: bool = False  # an AC rail: the voltages are rms
 
 
 @dataclass(frozen=True)
@@ -195,7 +196,7 @@ class PullNetwork:
     drivers: tuple[DriverOnNet, ...] = ()
     capacitors: tuple[CapacitorOnNet, ...] = ()
     opposite_rail: Rail | None = None  # the rail a switch/driver pulls toward (usually ground)
-    mains_adjacent: bool = False
+    mains_adjacent: bool = False  # next to mains or other hazardous voltage (see hazard.py)
     mains_reason: str = ""
     missing: tuple[Missing, ...] = ()
     notes: tuple[str, ...] = field(default_factory=tuple)

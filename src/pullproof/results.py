@@ -19,9 +19,11 @@ __all__ = [
     "Check",
     "Figure",
     "Finding",
+    "HazardousNet",
     "NetworkResult",
     "OperatingPoint",
     "Recommendation",
+    "ResistorVoltage",
     "ReviewResult",
     "Severity",
     "Skipped",
@@ -182,6 +184,31 @@ class Finding:
 
 
 @dataclass(frozen=True)
+class HazardousNet:
+    """A net at mains or other hazardous voltage (see :mod:`pullproof.hazard`)."""
+
+    net: str
+    volts: float  # nominal; rms when ``ac``
+    ac: bool
+    reason: str
+
+
+@dataclass(frozen=True)
+class ResistorVoltage:
+    """A resistor tied (alone or in a series chain) to a hazardous net, and its working-voltage
+    check."""
+
+    ref: str
+    net: str  # the hazardous net the chain starts on
+    chain: tuple[str, ...]  # the series chain, starting at the hazardous net
+    volts: float | None  # worst-case voltage across this resistor (rms for AC)
+    ac: bool
+    working: float | None  # its working voltage, V
+    ok: bool | None  # None: a value is unknown
+    text: str  # one sentence naming the parts
+
+
+@dataclass(frozen=True)
 class Skipped:
     """A resistor tied to a rail that is deliberately not judged as a logic pull."""
 
@@ -201,6 +228,8 @@ class ReviewResult:
     files: tuple[tuple[str, str], ...] = ()  # (sheet file, absolute path) of every file read
     rules_file: str | None = None
     notes: tuple[str, ...] = field(default_factory=tuple)
+    hazardous_nets: tuple[HazardousNet, ...] = ()  # nets at mains or other hazardous voltage
+    resistor_voltages: tuple[ResistorVoltage, ...] = ()  # resistors tied to them, checked
 
     @property
     def worst(self) -> Verdict:

@@ -12,7 +12,7 @@ import fnmatch
 import math
 import os
 import re
-from collections.abc import Iterable, Sequence
+from collections.abc import Callable, Iterable, Sequence
 from dataclasses import dataclass, replace
 from pathlib import Path
 
@@ -28,10 +28,19 @@ from .families.match import (
     load_part_library,
     resolve_part,
 )
+from .hazard import hazards_of, voltage_findings
 from .nets import build_circuit
 from .network import Direction, Missing, PullNetwork, PullResistor, Rail
 from .provenance import Origin, Provenance, Sourced, Status
-from .results import Finding, NetworkResult, ReviewResult, Skipped, Verdict
+from .results import (
+    Finding,
+    HazardousNet,
+    NetworkResult,
+    ResistorVoltage,
+    ReviewResult,
+    Skipped,
+    Verdict,
+)
 from .rules import RULES_FILE, Rules, load_rules
 from .topology import PullSite, find_pulls
 from .units import Q_
@@ -351,6 +360,8 @@ def review_circuit(
                 f"is open{tail}",
             )
         )
+    hazardous, voltages = _hazards(circuit, infos, rules, resolver, chosen)
+    findings.extend(voltage_findings(voltages, rules))
     files = tuple(sorted(circuit.files.items()))
     return ReviewResult(
         root=circuit.root,
@@ -359,7 +370,22 @@ def review_circuit(
         skipped=tuple(sorted(skipped, key=lambda s: (s.net, s.ref))),
         files=files,
         rules_file=rules.file or None,
+        hazardous_nets=hazardous,
+        resistor_voltages=voltages,
     )
+
+
+def _hazards(
+    circuit: Circuit,
+    infos: dict[str, PartInfo],
+    rules: Rules,
+    resolver: Resolver,
+    chosen: Callable[[Iterable[str]], bool],
+) -> tuple[tuple[HazardousNet, ...], tuple[ResistorVoltage, ...]]:
+    """Nets at hazardous voltage, and the working-voltage check of the chosen resistors on them."""
+    found, checks = hazards_of(circuit, infos, rules, resolver.rail_of)
+    nets = tuple(h.result() for _, h in sorted(found.items()))
+    return nets, tuple(c for c in checks if chosen([c.ref]))
 
 
 def _has_internal_pull(circuit: Circuit, ref: str) -> bool:

@@ -103,6 +103,7 @@ class RailSpec:
     v_min: Sourced | None
     v_max: Sourced | None
     ground: bool = False
+    ac: bool = False  # an AC rail: the voltages are rms
 
 
 @dataclass(frozen=True)
@@ -126,6 +127,7 @@ class Rules:
     values: Mapping[str, Sourced | str | None]
     rails: Mapping[str, RailSpec] = field(default_factory=lambda: MappingProxyType({}))
     nets: tuple[tuple[str, Mapping[str, Sourced | str]], ...] = ()
+    mains_dc: bool = False  # mains_voltage written with "DC"; mains is AC otherwise
 
     def get(self, key: str) -> Any:
         """The value of a rules key (Sourced, a word, or None when unset and no default)."""
@@ -165,7 +167,17 @@ class Rules:
         nominal = Sourced(Q_(volts, "V"), src)
         lo, hi = sorted((volts * (1 - frac), volts * (1 + frac)))
         derived = Provenance(Origin.DERIVED, f"{bare} ± {tol.source.where}", tol.source.status)
-        return RailSpec(bare, nominal, Sourced(Q_(lo, "V"), derived), Sourced(Q_(hi, "V"), derived))
+        ac = re.search(r"\dV?AC(?![A-Z])", bare.upper()) is not None  # 24VAC, 230VAC
+        return RailSpec(
+            bare, nominal, Sourced(Q_(lo, "V"), derived), Sourced(Q_(hi, "V"), derived), ac=ac
+        )
+
+    def mains(self, net_name: str) -> RailSpec:
+        """The voltage of a mains-pattern net: rules key ``mains_voltage`` (AC unless "DC")."""
+        volts = self.values["mains_voltage"]
+        assert isinstance(volts, Sourced)
+        ac = not self.mains_dc
+        return RailSpec(_bare(net_name), volts, volts, volts, ac=ac)
 
     def is_mains(self, net_name: str) -> bool:
         """True when the net name matches a mains pattern (case-insensitive glob)."""
@@ -390,7 +402,11 @@ def _build(reader: _Reader | None, doc: Mapping[str, Any]) -> Rules:
             values[dotted] = parsed
     rails = _rails(reader, flat.get("rails", {}), values)
     nets = _nets(reader, flat.get("net", []))
-    return Rules(reader.path.name if reader else "", MappingProxyType(values), rails, nets)
+    mains_text = str(flat.get("mains_voltage", KEYS["mains_voltage"].default))
+    mains_dc = re.search(r"DC\s*$", mains_text, re.I) is not None
+    return Rules(
+        reader.path.name if reader else "", MappingProxyType(values), rails, nets, mains_dc
+    )
 
 
 def _rails(reader: _Reader | None, table: Any, values: Mapping[str, Any]) -> Mapping[str, RailSpec]:
@@ -404,11 +420,12 @@ def _rails(reader: _Reader | None, table: Any, values: Mapping[str, Any]) -> Map
         dotted = f"rails.{name}"
         entry = spec if isinstance(spec, dict) else {"nominal": spec}
         for key in entry:
-            if key not in ("nominal", "tolerance"):
+            if key not in ("nominal", "tolerance", "ac"):
                 raise reader.unknown(
-                    f"{dotted}.{key}", [f"{dotted}.nominal", f"{dotted}.tolerance"]
+                    f"{dotted}.{key}", [f"{dotted}.{k}" for k in ("nominal", "tolerance", "ac")]
                 )
         nominal = reader.value(dotted, "voltage", entry.get("nominal", ""))
+        ac = _rail_is_ac(reader, dotted, entry)
         tol = (
             reader.value(f"{dotted}.tolerance", "percent", entry["tolerance"])
             if "tolerance" in entry
@@ -420,9 +437,19 @@ def _rails(reader: _Reader | None, table: Any, values: Mapping[str, Any]) -> Map
         lo, hi = sorted((volts * (1 - frac), volts * (1 + frac)))
         derived = Provenance(Origin.DERIVED, f"{nominal.source.where} ± {tol.source.where}")
         out[name] = RailSpec(
-            name, nominal, Sourced(Q_(lo, "V"), derived), Sourced(Q_(hi, "V"), derived), volts == 0
-        )
+            name, nominal, Sourced(Q_(lo, "V"), derived), Sourced(Q_(hi, "V"), derived), volts == 0,
+            ac,
+        )  # fmt: skip
     return MappingProxyType(out)
+
+
+def _rail_is_ac(reader: _Reader, dotted: str, entry: Mapping[str, Any]) -> bool:
+    """A rail is AC when its nominal says so ("230VAC") or the entry has ``ac = true``."""
+    flag = entry.get("ac", False)
+    if not isinstance(flag, bool):
+        raise reader.error(f"{dotted}.ac", f"rules key '{dotted}.ac': write true or false")
+    text = str(entry.get("nominal", ""))
+    return flag or parse_voltage_ac(text, field=dotted)[1]
 
 
 _NET_KINDS = MappingProxyType(

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from ..eseries import format_ohms
+from ..hazard import safety_caution
 from ..results import Figure, NetworkResult, OperatingPoint, ReviewResult
 from .format import format_quantity
 
@@ -88,6 +89,15 @@ def review_table(result: ReviewResult) -> str:
             out.append(
                 f"  {f.severity.value.upper():10} {f.kind:28} {f.net} [{refs}]: {f.message}\n"
             )
+    caution = safety_caution(result)
+    if caution:
+        out.append("\nsafety:\n")
+        for near in (r.network for r in order if r.network.mains_adjacent):
+            out.append(f"  {near.net} is next to hazardous voltage: {near.mains_reason}\n")
+        for c in result.resistor_voltages:
+            mark = {True: "ok", False: "FAIL", None: "unknown"}[c.ok]
+            out.append(f"  {c.ref:6} {mark:7} {c.text}\n")
+        out.append(f"  {caution}\n")
     if result.skipped:
         out.append("\nnot judged as logic pulls:\n")
         for s in sorted(result.skipped, key=lambda s: s.ref):

@@ -28,6 +28,7 @@ from markupsafe import Markup
 from .. import __version__
 from ..errors import PullproofError
 from ..eseries import format_rkm
+from ..hazard import safety_caution
 from ..network import Missing, PullNetwork
 from ..provenance import Sourced
 from ..results import (
@@ -513,6 +514,9 @@ def note_context(
         "formulas": _formulas(result),
         "network_counts": _counts(n.verdict for n in result.networks),
         "mains_count": sum(1 for n in result.networks if n.network.mains_adjacent),
+        "hazardous": result.hazardous_nets,
+        "resistor_voltages": result.resistor_voltages,
+        "safety_caution": safety_caution(result),
     }
 
 
@@ -554,8 +558,14 @@ def note_environment(directory: Path | None = None) -> jinja2.Environment:
         window=format_window,
         margin=format_margin,
         rkm=format_rkm,
+        capitalize_first=_capitalize_first,
     )
     return env
+
+
+def _capitalize_first(text: str) -> str:
+    """The sentence with its first letter upper-case (the rest untouched: net names keep case)."""
+    return text[:1].upper() + text[1:]
 
 
 @lru_cache(maxsize=1)

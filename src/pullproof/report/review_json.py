@@ -6,6 +6,7 @@ import math
 from typing import Any
 
 from ..eseries import format_rkm
+from ..hazard import safety_caution
 from ..network import Missing
 from ..provenance import Sourced
 from ..results import (
@@ -177,6 +178,8 @@ def _network(r: NetworkResult) -> dict[str, Any]:
             {"ref": c.ref, "farads": _num(c.farads, "F"), "to": c.to} for c in n.capacitors
         ],
         "mains_adjacent": n.mains_adjacent,
+        "hazard_reason": n.mains_reason if n.mains_adjacent else "",
+        "rail_ac": n.rail.ac,
         "window_ohms": list(r.window),
         "margins": list(r.margins),
         "verdict": r.verdict.value,
@@ -206,6 +209,29 @@ def _skipped(s: Skipped) -> dict[str, str]:
     return {"ref": s.ref, "net": s.net, "reason": s.reason}
 
 
+def _hazardous(result: ReviewResult) -> dict[str, Any]:
+    return {
+        "nets": [
+            {"net": h.net, "volts": h.volts, "ac": h.ac, "reason": h.reason}
+            for h in result.hazardous_nets
+        ],
+        "resistors": [
+            {
+                "ref": c.ref,
+                "net": c.net,
+                "chain": list(c.chain),
+                "volts": c.volts,
+                "ac": c.ac,
+                "working_volts": c.working,
+                "ok": c.ok,
+                "text": c.text,
+            }
+            for c in result.resistor_voltages
+        ],
+        "caution": safety_caution(result),
+    }
+
+
 def review_json(result: ReviewResult) -> dict[str, Any]:
     """The review as a JSON-ready dict following schema ``pullproof.review/1``."""
     return {
@@ -215,4 +241,5 @@ def review_json(result: ReviewResult) -> dict[str, Any]:
         "networks": [_network(r) for r in result.networks],
         "findings": [_finding(f) for f in result.findings],
         "skipped": [_skipped(s) for s in result.skipped],
+        "hazardous": _hazardous(result),
     }
