@@ -122,6 +122,15 @@ def test_input_tolerance_check_and_finding() -> None:
     assert check["substituted"] == "5.25 V ≤ 3.6 V"
     f = next(f for f in panel().findings if f.kind == "rail-above-input-tolerance")
     assert (f.net, f.refs, f.severity) == ("/TOOL_PROBE", ("R9", "U3"), Verdict.FAIL)
+    # reasons and findings read as sentences naming the parts
+    assert net("/TOOL_PROBE")["reason"] == (
+        "The pull rail reaches 5.25 V but U3 pin 7 tolerates at most 3.6 V."
+    )
+    assert f.message == (
+        "R9 pulls /TOOL_PROBE to +5V: the pull rail reaches 5.25 V but U3 pin 7 tolerates at "
+        "most 3.6 V"
+    )
+    assert check["sentence"] == "the pull rail reaches 5.25 V but U3 pin 7 tolerates at most 3.6 V"
 
 
 def test_parallel_pulls_are_one_network() -> None:

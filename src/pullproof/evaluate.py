@@ -143,28 +143,26 @@ def _judge(
     margins: tuple[float | None, float | None],
     missing: tuple[Missing, ...],
 ) -> tuple[Verdict, str]:
+    """The verdict and its deciding reason, as a plain sentence naming the parts."""
     r_lo, r_hi = rband
     res = network.resistor
-    fitted = (
+    who = (
         f"{'/'.join(res.refs)} ({eng(res.ohms.magnitude('ohm'), 'Ω')} "
-        f"±{pct(res.tolerance.magnitude(''))}) spans {eng(r_lo, 'Ω')}–{eng(r_hi, 'Ω')}"
+        f"±{pct(res.tolerance.magnitude(''))})"
     )
+    fitted = f"{who} spans {eng(r_lo, 'Ω')}–{eng(r_hi, 'Ω')}"
     if lo_b is not None and hi_b is not None and _ohms(lo_b) > _ohms(hi_b) * (1 + _REL):
         return Verdict.FAIL, (
-            f"No resistance fits: {lo_b.title.lower()} needs at least {eng(_ohms(lo_b), 'Ω')} "
-            f"but {hi_b.title.lower()} allows at most {eng(_ohms(hi_b), 'Ω')}."
+            f"No resistance fits: R must be at least {_limit(lo_b, aside=True)} but at most "
+            f"{_limit(hi_b, aside=True)}."
         )
     hard_bad = [b for b in bounds if b.hard and _violated(b, r_lo, r_hi)]
     if hard_bad:
         b = max(hard_bad, key=lambda x: _shortfall(x, r_lo, r_hi))
-        side = "below the minimum" if b.kind is BoundKind.MIN else "above the maximum"
-        return Verdict.FAIL, (
-            f"{fitted}, {side} of {eng(_ohms(b), 'Ω')} from {b.title.lower()} ({b.constraint})."
-        )
+        return Verdict.FAIL, f"{_reach(who, b, r_lo, r_hi)}, {_side(b)} the {_limit(b)}."
     bad_checks = [c for c in checks if c.hard and c.ok is False]
     if bad_checks:
-        c = bad_checks[0]
-        return Verdict.FAIL, f"{c.title} is not met: it needs {c.substituted} ({c.constraint})."
+        return Verdict.FAIL, _check_reason(bad_checks[0])
     if missing:
         m = missing[0]
         more = f" (and {len(missing) - 1} more)" if len(missing) > 1 else ""
@@ -173,32 +171,63 @@ def _judge(
     soft_bad_checks = [c for c in checks if not c.hard and c.ok is False]
     if soft_bad:
         b = soft_bad[0]
-        side = "below" if b.kind is BoundKind.MIN else "above"
-        return Verdict.MARGINAL, (
-            f"Hard limits are met, but {fitted}, {side} the {b.title.lower()} "
-            f"limit of {eng(_ohms(b), 'Ω')}."
-        )
+        reach = _reach(who, b, r_lo, r_hi)
+        return Verdict.MARGINAL, f"Hard limits are met, but {reach}, {_side(b)} the {_limit(b)}."
     if soft_bad_checks:
         c = soft_bad_checks[0]
-        return Verdict.MARGINAL, f"Hard limits are met, but {c.title.lower()} is missed."
+        text = c.sentence or f"{c.title.lower()} is missed"
+        return Verdict.MARGINAL, f"Hard limits are met, but {text}."
     need = network.rules.margin_ratio
     threshold = DEFAULT_MARGIN_RATIO if need is None else need.magnitude("")
     edges = [(r, e) for r, e in zip(margins, (lo_b, hi_b), strict=True) if r is not None and e]
     if edges:
         ratio, edge = min(edges, key=lambda e: e[0])
+        ask = f"the rules ask for {pct(threshold)}"
         if ratio < threshold:
-            what = "minimum" if edge.kind is BoundKind.MIN else "maximum"
+            reach = _reach(who, edge, r_lo, r_hi)
             return Verdict.MARGINAL, (
-                f"Hard limits are met, but {fitted}, only {pct(ratio)} inside the "
-                f"{eng(_ohms(edge), 'Ω')} {what} from {edge.title.lower()}; "
-                f"the rules ask for {pct(threshold)}."
+                f"Hard limits are met, but {reach}, only {pct(ratio)} inside the "
+                f"{_limit(edge)}; {ask}."
             )
-        nearest = eng(_ohms(edge), "Ω")
         if ratio >= 1.0:
-            # A percentage in the thousands reads as noise: name the nearest limit instead.
-            return Verdict.PASS, f"{fitted}, well inside the window (nearest limit {nearest})."
+            # A percentage in the thousands reads as noise: say how many times over it is.
+            times = f"{1 + ratio:.3g}×"
+            lim = eng(_ohms(edge), "Ω")
+            room = (
+                f"R_lo is {times} the {lim} minimum"
+                if edge.kind is BoundKind.MIN
+                else f"the {lim} maximum is {times} R_hi"
+            )
+            return Verdict.PASS, f"{fitted}, well inside the window: {room}."
         return Verdict.PASS, f"{fitted}, at least {pct(ratio)} inside the window."
     return Verdict.PASS, f"{fitted}; no constraint limits the resistance on this net."
+
+
+def _reach(who: str, b: Bound, r_lo: float, r_hi: float) -> str:
+    """'R3 (47 kΩ ±5 %) can reach 49.9 kΩ' for the band end a bound compares."""
+    if b.kind is BoundKind.MIN:
+        return f"{who} can be as low as {eng(r_lo, 'Ω')}"
+    return f"{who} can reach {eng(r_hi, 'Ω')}"
+
+
+def _side(b: Bound) -> str:
+    return "below" if b.kind is BoundKind.MIN else "above"
+
+
+def _limit(b: Bound, *, aside: bool = False) -> str:
+    """'3.2 kΩ at which SW3 still gets its 1 mA wetting current' (a bound's own clause), or
+    '3.2 kΩ maximum set by contact wetting current' for a bound that gives none."""
+    value = eng(_ohms(b), "Ω")
+    if b.says:
+        return f"{value} ({b.says})" if aside else f"{value} {b.says}"
+    word = "minimum" if b.kind is BoundKind.MIN else "maximum"
+    return f"{value} ({b.title.lower()})" if aside else f"{value} {word} set by {b.title.lower()}"
+
+
+def _check_reason(c: Check) -> str:
+    if c.sentence:
+        return f"{c.sentence[:1].upper()}{c.sentence[1:]}."
+    return f"{c.title} is not met: it needs {c.substituted} ({c.constraint})."
 
 
 def _shortfall(b: Bound, r_lo: float, r_hi: float) -> float:

@@ -83,6 +83,9 @@ class Bound:
     relax: str = ""  # what would relax this bound, for empty-window advice
     corner: str = ""  # which corner was worst, e.g. "VCC = 4.5 V, 85 °C"
     missing: tuple[Missing, ...] = ()
+    # A clause naming the parts, completing "the 3.2 kΩ …": "at which SW3 still gets its 1 mA
+    # wetting current". Reasons are built from it; "" falls back to the title.
+    says: str = ""
 
     @property
     def evaluated(self) -> bool:
@@ -104,6 +107,9 @@ class Check:
     source: str = ""
     explanation: str = ""
     missing: tuple[Missing, ...] = ()
+    # The outcome as a plain sentence naming the parts, without the final full stop: "the pull
+    # rail reaches 5.25 V but U2 pin 3 tolerates at most 3.5 V". "" falls back to the formula.
+    sentence: str = ""
 
 
 @dataclass(frozen=True)

@@ -241,8 +241,8 @@ def _check_findings(result: NetworkResult) -> list[Finding]:
                     Verdict.FAIL,
                     n.net,
                     (*n.resistor.refs, *(i.ref for i in n.inputs)),
-                    f"{', '.join(n.resistor.refs)} pulls {n.net} to {n.rail.name}, above what an "
-                    f"input on it tolerates (needs {c.substituted})",
+                    f"{', '.join(n.resistor.refs)} pulls {n.net} to {n.rail.name}: "
+                    + (c.sentence or f"above what an input on it tolerates ({c.substituted})"),
                 )
             )
     return out

@@ -106,6 +106,8 @@ def edge_rate(network: PullNetwork) -> tuple[Bound | Check, ...]:
                 explanation=f"{why} {start.why}" if up else why,
                 relax=_RELAX,
                 corner=f"{inp.ref} pin {inp.pin}: {corner}; edge {e.start}",
+                says=f"at which the edge crosses the band of {inp.ref} pin {inp.pin} within "
+                f"{fmt(t_max, 's')}",
             )
     return tuple(out) if best is None else (*out, best)
 
@@ -152,4 +154,5 @@ def _i2c(network: PullNetwork, mode: str) -> Bound:
         explanation=why,
         relax="less bus capacitance (shorter wiring, fewer devices) or a slower bus mode",
         corner=f"{mode}-mode",
+        says=f"at which the bus rises from 0.3·VDD to 0.7·VDD within its {fmt(tr, 's')} t_r",
     )

@@ -344,7 +344,11 @@ def _rows(nr: NetworkResult, reg: _Registry) -> tuple[LimitRow, ...]:
         )
     for c in nr.checks:
         terms = tuple(reg.ref(t.symbol, t.value) for t in c.terms)
-        outcome = {True: "holds", False: "violated", None: "a value is missing"}[c.ok]
+        outcome = (
+            f"{c.sentence[:1].upper()}{c.sentence[1:]}."
+            if c.sentence
+            else {True: "holds", False: "violated", None: "a value is missing"}[c.ok]
+        )
         out.append(
             LimitRow(
                 c.title,

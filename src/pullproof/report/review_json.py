@@ -140,11 +140,11 @@ def _limit(item: Bound | Check, **own: Any) -> dict[str, Any]:
 
 
 def _bound(b: Bound) -> dict[str, Any]:
-    return {**_limit(b, kind=b.kind.value, ohms=b.ohms), "corner": b.corner}
+    return {**_limit(b, kind=b.kind.value, ohms=b.ohms), "corner": b.corner, "says": b.says}
 
 
 def _check(c: Check) -> dict[str, Any]:
-    return _limit(c, ok=c.ok)
+    return {**_limit(c, ok=c.ok), "sentence": c.sentence}
 
 
 def _network(r: NetworkResult) -> dict[str, Any]:
