@@ -160,6 +160,18 @@ def test_an_opto_fed_from_a_hazardous_rail_marks_its_output_network(tmp_path: Pa
     assert adjacent and reason.startswith("U1 also connects to")
 
 
+def test_a_capacitor_to_a_hazardous_rail_marks_the_network(tmp_path: Path) -> None:
+    # a kiln's door-sense line coupled by C1 to the 121 V DC element supply (IEC 61140: > 120 V)
+    bench = LabelPlacer(frozenset({"+3V3", "GND", "HV"}))
+    bench.resistor("R2", "10k", "+3V3", "SENSE", Footprint="R_0603_1608Metric")
+    bench.place("U2", "74xx:74HC14", GATE, "74HC14", {"1": "SENSE"})
+    bench.place("C1", "Device:C", (Pin("1", (0, 3.81)), Pin("2", (0, -3.81))), "1n",
+                {"1": "SENSE", "2": "HV"})  # fmt: skip
+    rules_file(tmp_path, '"121V"')
+    adjacent, reason = sense(review(bench.b.write(tmp_path / "kiln.kicad_sch")))
+    assert adjacent and reason.startswith("C1 ties it to HV, which is at 121 V DC")
+
+
 def mains_sense(tmp_path: Path, mains_voltage: str | None) -> ReviewResult:
     """A pump controller: two 0805 resistors in series from the mains live into an opto LED."""
     bench = LabelPlacer(frozenset({"+3V3", "GND"}))

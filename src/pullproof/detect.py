@@ -319,8 +319,8 @@ class Resolver:
     # ------------------------------------------------------------------ mains
     def mains_reason(self, site: PullSite, rails: tuple[str, ...] = ()) -> str:
         """Why this network sits next to mains or other hazardous voltage ("" when it does
-        not): its net is at it, its pull rail is, or a driver or switch part also connects
-        to a net that is (an optocoupler, a relay)."""
+        not): its net is at it, its pull rail is, a two-terminal part ties it to such a net,
+        or a driver or switch part also connects to one (an optocoupler, a relay)."""
         own = self._hazard(site.net.name)
         if own is not None:
             return own.reason
@@ -328,6 +328,15 @@ class Resolver:
             h = hazard_of(self.rules, name, self.rules.rail(name))
             if h is not None:
                 return f"the pull rail {name} {h.what}"
+        for m in site.net.members:  # a two-terminal part (capacitor, resistor) to such a net
+            part = self.circuit.part(m.ref)
+            if part is None or len(part.pins) != 2:
+                continue
+            for p in part.pins:
+                far = self.circuit.net_of(part.ref, p.number)
+                h = None if far is None or far.name == site.net.name else self._hazard(far.name)
+                if far is not None and h is not None:
+                    return f"{part.ref} ties it to {far.name}, which {h.what}"
         for pin in (*site.drivers, *site.switches):
             part = self.circuit.part(pin.ref)
             if part is None:

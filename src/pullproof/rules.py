@@ -62,7 +62,12 @@ KEYS: Mapping[str, Key] = MappingProxyType(
         "current_budget": Key("current", None, "no budget unless the design is battery-powered"),
         "bounce": Key("time", None, "only needed when a capacitor debounces a contact"),
         "edge_time": Key("time", None, "the family transition limit applies when unset"),
-        "mains_voltage": Key("voltage", "230VAC", "the most common mains supply; set yours"),
+        "mains_voltage": Key(
+            "voltage",
+            "230VAC",
+            "the most common mains supply; set yours: mains-pattern nets carry it, and resistors "
+            "on them are checked against it",
+        ),
         "mains_patterns": Key(
             "patterns",
             "MAINS,MAINS_L*,MAINS_N*,*_MAINS_L,*_MAINS_N,AC_L*,AC_N*,*_AC_L,*_AC_N,LINE_L,LINE_N,"
