@@ -16,6 +16,7 @@ from collections.abc import Callable, Iterable, Sequence
 from dataclasses import dataclass, replace
 from pathlib import Path
 
+from .acceptance import apply_acceptances, read_acceptances
 from .circuit import Circuit, Part
 from .detect import Resolver, UnknownRail, enabled_internal_pull
 from .errors import PullproofError
@@ -363,7 +364,7 @@ def review_circuit(
     hazardous, voltages = _hazards(circuit, infos, rules, resolver, chosen)
     findings.extend(voltage_findings(voltages, rules))
     files = tuple(sorted(circuit.files.items()))
-    return ReviewResult(
+    review_result = ReviewResult(
         root=circuit.root,
         networks=tuple(sorted(results, key=lambda r: r.network.net)),
         findings=tuple(findings),
@@ -373,6 +374,8 @@ def review_circuit(
         hazardous_nets=hazardous,
         resistor_voltages=voltages,
     )
+    acceptances = read_acceptances(circuit, rules)
+    return apply_acceptances(review_result, acceptances, whole=not select.active)
 
 
 def _hazards(

@@ -10,7 +10,9 @@ from ..hazard import safety_caution
 from ..network import Missing
 from ..provenance import Sourced
 from ..results import (
+    AcceptanceMark,
     Bound,
+    Changes,
     Check,
     Figure,
     Finding,
@@ -120,6 +122,22 @@ def _recommendation(rec: Recommendation | None) -> dict[str, Any] | None:
     }
 
 
+def _acceptance(mark: AcceptanceMark | None) -> dict[str, Any] | None:
+    if mark is None:
+        return None
+    a = mark.acceptance
+    return {
+        "status": "accepted" if mark.holds else "lapsed",
+        "lapsed": mark.lapsed or None,
+        "reason": a.reason,
+        "by": a.by or None,
+        "date": a.date or None,
+        "where": a.where,
+        "origin": a.origin,
+        "recorded": {"kind": a.kind or None, "value_ohms": a.value_ohms, "tolerance": a.tolerance},
+    }
+
+
 def _missing(m: Missing) -> dict[str, str]:
     return {"what": m.what, "ref": m.ref, "hint": m.hint}
 
@@ -192,6 +210,7 @@ def _network(r: NetworkResult) -> dict[str, Any]:
         "checks": [_check(c) for c in r.checks],
         "missing": [_missing(m) for m in r.missing],
         "operating_point": _operating(r.operating),
+        "acceptance": _acceptance(r.accepted),
     }
 
 
@@ -202,6 +221,7 @@ def _finding(f: Finding) -> dict[str, Any]:
         "net": f.net,
         "refs": list(f.refs),
         "message": f.message,
+        "acceptance": _acceptance(f.accepted),
     }
 
 
@@ -232,14 +252,44 @@ def _hazardous(result: ReviewResult) -> dict[str, Any]:
     }
 
 
+def _changes(c: Changes | None) -> dict[str, Any] | None:
+    if c is None:
+        return None
+
+    def pair(ch: Any) -> dict[str, Any]:
+        return {
+            "network": ch.key,
+            "net": (ch.new or ch.old).network.net,
+            "refs": list((ch.new or ch.old).network.resistor.refs),
+            "what": list(ch.what),
+            "verdict": None if ch.new is None else ch.new.verdict.value,
+            "old_verdict": None if ch.old is None else ch.old.verdict.value,
+        }
+
+    return {
+        "against": c.old_root,
+        "old_files": [{"file": label, "path": path} for label, path in c.old_files],
+        "old_rules_file": c.old_rules_file,
+        "added": [pair(ch) for ch in c.added],
+        "removed": [pair(ch) for ch in c.removed],
+        "changed": [pair(ch) for ch in c.changed],
+        "unchanged": c.unchanged,
+        "new_findings": [_finding(f) for f in c.new_findings],
+        "resolved_findings": [_finding(f) for f in c.resolved_findings],
+    }
+
+
 def review_json(result: ReviewResult) -> dict[str, Any]:
     """The review as a JSON-ready dict following schema ``pullproof.review/1``."""
     return {
         "schema": SCHEMA,
         "root": result.root,
         "worst": result.worst.value,
+        "gate": result.gate.value,
+        "warnings": list(result.warnings),
         "networks": [_network(r) for r in result.networks],
         "findings": [_finding(f) for f in result.findings],
         "skipped": [_skipped(s) for s in result.skipped],
         "hazardous": _hazardous(result),
+        "changes": _changes(result.changes),
     }
