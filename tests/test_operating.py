@@ -16,9 +16,9 @@ from typing import Any
 
 import pytest
 
-from netfactory import GND, cap, driver, inp, levels, network, rail, resistor, rules, switch
+from netfactory import GND, cap, driver, inp, levels, network, rail, resistor, rules, src, switch
 from pullproof.evaluate import evaluate, recommend
-from pullproof.operating import operating_point
+from pullproof.operating import operating_point, operating_points
 from pullproof.provenance import Status
 from pullproof.report.console import review_table
 from pullproof.report.review_json import review_json
@@ -124,10 +124,11 @@ def test_i2c_rise_time_at_each_candidate(ohms: float, t_r: float) -> None:
     )
     rec = recommend(net, (966.7, 1770.3))
     point = next(p for p in rec.points if p.ohms == pytest.approx(ohms))
-    assert value(point.edge, "s") == pytest.approx(t_r, rel=1e-3)
-    assert point.edge.symbol == "t_r"
+    assert point.edge == pytest.approx(t_r, rel=1e-3)
     # on a bus the devices hold the line low: (3.3 V − 0 V) / 1.5 kΩ = 2.2 mA (Ohm's law)
-    assert value(point.current_max, "A") == pytest.approx(3.3 / ohms, rel=REL)
+    assert point.current_max == pytest.approx(3.3 / ohms, rel=REL)
+    # the fitted value's point says which edge it is
+    assert operating_point(net).edge.symbol == "t_r"
 
 
 def test_open_drain_edge_starts_at_v_ol() -> None:
@@ -179,6 +180,15 @@ def test_figures_keep_provenance_with_the_weakest_status() -> None:
     hc = replace(HC45, i_high=memory)
     op = operating_point(network(inp(hc), pull_rail=rail("+5V", 4.5), res=resistor(1.2e6)))
     assert op.idle.value is not None and op.idle.value.source.status is Status.FROM_MEMORY
+
+
+def test_candidate_numbers_match_a_full_point_at_the_same_value() -> None:
+    # a candidate's plain numbers are the full operating point's, at the candidate's value
+    net = industrial_input(12e3, power=0.1)
+    full = operating_point(replace(net, resistor=replace(net.resistor, ohms=src(15e3, "ohm"))))
+    (light,) = operating_points(net, (15e3,))
+    assert light.figures == pytest.approx(full.values().figures)
+    assert light.band == pytest.approx(full.band)
 
 
 def test_evaluate_gives_the_fitted_and_every_candidate_point() -> None:

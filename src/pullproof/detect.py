@@ -321,7 +321,7 @@ class Resolver:
         """Why this network sits next to mains or other hazardous voltage ("" when it does
         not): its net is at it, its pull rail is, a two-terminal part ties it to such a net,
         or a driver or switch part also connects to one (an optocoupler, a relay)."""
-        own = self._hazard(site.net.name)
+        own = self.hazard(site.net.name)
         if own is not None:
             return own.reason
         for name in rails:
@@ -334,7 +334,7 @@ class Resolver:
                 continue
             for p in part.pins:
                 far = self.circuit.net_of(part.ref, p.number)
-                h = None if far is None or far.name == site.net.name else self._hazard(far.name)
+                h = None if far is None or far.name == site.net.name else self.hazard(far.name)
                 if far is not None and h is not None:
                     return f"{part.ref} ties it to {far.name}, which {h.what}"
         for pin in (*site.drivers, *site.switches):
@@ -342,12 +342,13 @@ class Resolver:
             if part is None:
                 continue
             for other in self._nets_near(part, site.net.name):
-                h = self._hazard(other)
+                h = self.hazard(other)
                 if h is not None:
                     return f"{pin.ref} also connects to {other}, which {h.what}"
         return ""
 
-    def _hazard(self, name: str) -> Hazard | None:
+    def hazard(self, name: str) -> Hazard | None:
+        """The hazard of the net called ``name`` (mains pattern or rail voltage), or None."""
         if name not in self._hazards:
             net = self.nets.get(name)
             spec = self.rail_of(net) if net is not None else None
@@ -365,7 +366,7 @@ class Resolver:
         for name in first:
             net = self.nets[name]
             spec = self.rail_of(net)
-            if spec is not None and self._hazard(name) is None:
+            if spec is not None and self.hazard(name) is None:
                 continue  # a supply or ground reaches everything; a hazard is never beyond it
             for m in net.members:
                 other = self.circuit.part(m.ref)

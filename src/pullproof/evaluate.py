@@ -12,13 +12,14 @@ from __future__ import annotations
 
 import math
 from collections.abc import Iterable, Mapping
+from dataclasses import replace
 
 from . import eseries
 from .constraints import BUILTIN, Constraint, ConstraintPluginError
 from .constraints._common import band, dedupe, eng, pct
 from .errors import RulesError
 from .network import Missing, PullNetwork
-from .operating import operating_point, operating_points
+from .operating import analyse, operating_points
 from .results import Bound, BoundKind, Check, NetworkResult, Recommendation, Verdict
 
 __all__ = ["DEFAULT_MARGIN_RATIO", "OPEN_BOTTOM_OHMS", "OPEN_TOP_OHMS", "evaluate", "recommend"]
@@ -70,7 +71,11 @@ def evaluate(
     verdict, reason = _judge(network, bounds, checks, (r_lo, r_hi), lo_b, hi_b, margins, missing)
     rec = None
     if not missing and not empty and (lo is not None or hi is not None):
-        rec = recommend(network, (lo, hi), soft=[b for b in bounds if not b.hard and b.evaluated])
+        soft = [b for b in bounds if not b.hard and b.evaluated]
+        rec = recommend(network, (lo, hi), soft=soft, points=False)
+    operating, points = analyse(network, rec.candidates if rec else ())
+    if rec is not None:
+        rec = replace(rec, points=points)
     return NetworkResult(
         network=network,
         bounds=bounds,
@@ -84,7 +89,7 @@ def evaluate(
         checks=checks,
         advice=advice,
         missing=missing,
-        operating=operating_point(network),
+        operating=operating,
     )
 
 
@@ -240,13 +245,15 @@ def recommend(
     window: tuple[float | None, float | None],
     *,
     soft: Iterable[Bound] = (),
+    points: bool = True,
 ) -> Recommendation:
     """E-series values whose whole band fits ``window``, and the pick by the rules' policy.
 
     The band uses the fitted resistor's tolerance and TCR (the part the designer
     buys), so the list answers "which value of this part would fit". An open side
     of the window is closed at :data:`OPEN_TOP_OHMS` / :data:`OPEN_BOTTOM_OHMS`.
-    Soft bounds narrow the pick (not the list) when some candidate meets them.
+    Soft bounds narrow the pick (not the list) when some candidate meets them. With
+    ``points``, each candidate's operating-point numbers come along.
     Policies: ``centre`` picks the candidate nearest the geometric centre of the
     (soft-narrowed) window on a log scale; ``low-current`` picks the largest.
     Raises :class:`~pullproof.errors.RulesError` for an unknown series or policy.
@@ -303,5 +310,5 @@ def recommend(
         pick,
         rules.policy,
         f"{eng(pick, 'Ω')} is {why}{note}.",
-        operating_points(network, cands),
+        operating_points(network, cands) if points else (),
     )

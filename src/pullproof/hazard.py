@@ -19,7 +19,7 @@ from __future__ import annotations
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass
 
-from .circuit import Circuit, Net, Part
+from .circuit import Circuit, Part
 from .families.match import PartInfo, PartKind, ResistorInfo
 from .provenance import Origin
 from .results import Finding, HazardousNet, ResistorVoltage, ReviewResult, Verdict
@@ -101,14 +101,14 @@ def hazard_of(rules: Rules, net: str, spec: RailSpec | None) -> Hazard | None:
 def hazards_of(
     circuit: Circuit,
     infos: Mapping[str, PartInfo],
-    rules: Rules,
-    rail_of: Callable[[Net], RailSpec | None],
+    hazard: Callable[[str], Hazard | None],
 ) -> tuple[dict[str, Hazard], tuple[ResistorVoltage, ...]]:
-    """Every net at hazardous voltage, and the working-voltage check of every resistor on one."""
+    """Every net at hazardous voltage (``hazard`` judges one net by name), and the
+    working-voltage check of every resistor on one."""
     nets = {n.name: n for n in circuit.nets}
     found: dict[str, Hazard] = {}
     for net in circuit.nets:
-        h = hazard_of(rules, net.name, rail_of(net))
+        h = hazard(net.name)
         if h is not None:
             found[net.name] = h
     checks: dict[str, ResistorVoltage] = {}

@@ -41,10 +41,10 @@ from .constraints._rc import Edge, edge, edge_start
 from .constraints.edges import I2C_RISE_CONSTANT
 from .network import Direction, Missing, PullNetwork
 from .provenance import Origin, Provenance, Sourced, Status
-from .results import Figure, OperatingPoint, Term
+from .results import Figure, OperatingPoint, PointValues, Term
 from .units import Q_
 
-__all__ = ["operating_point", "operating_points"]
+__all__ = ["analyse", "operating_point", "operating_points"]
 
 # A derived number is only as sure as its least sure input.
 _SURENESS = {
@@ -76,7 +76,8 @@ def _none(symbol: str, formula: str, note: str, missing: Iterable[Missing] = ())
 
 
 class _Context:
-    """What every resistance of one network shares: spans, leakage, levels, capacitance."""
+    """What every resistance of one network shares: spans, leakage, levels, capacitance, and
+    the same as plain floats for the many candidates (pint quantities are slow)."""
 
     def __init__(self, network: PullNetwork) -> None:
         self.network = network
@@ -90,127 +91,143 @@ class _Context:
         self.threshold = _threshold(network)
         self.cap = capacitance(network)
         self.edge, self.edge_note, self.edge_missing = _worst_edge(network)
+        self.i2c = bool(network.rules.i2c_mode and self.up)
+        self.scale = band(network.resistor, network.rules, 1.0)  # R_lo, R_hi of a 1 Ω part
+        self.v_max = self.span_max.volts if isinstance(self.span_max, Span) else None
+        self.v_low = self.span_min.volts if isinstance(self.span_min, Span) else None
+        self.idle_known = not self.leak_missing and bool(network.inputs or network.drivers)
+        self.v_rail = network.rail.v_min.magnitude("V") if self.up else 0.0
+        factor = I2C_RISE_CONSTANT if self.i2c else (self.edge.ln if self.edge else None)
+        self.factor = factor
+        timed = factor is not None and not math.isinf(factor) and not self.cap.missing
+        self.rc = factor * self.cap.farads if timed and factor and self.cap.farads > 0 else None
 
-    def point(self, ohms: float, label: str) -> OperatingPoint:
-        r_lo, r_hi = band(self.network.resistor, self.network.rules, ohms)
-        lo = Term("R_lo", _band_value(r_lo, label, "lowest"))
-        hi = Term("R_hi", _band_value(r_hi, label, "highest"))
-        return OperatingPoint(
+    def values(self, ohms: float) -> PointValues:
+        """The figures at ``ohms`` as floats in base units, without text or provenance."""
+        r_lo, r_hi = ohms * self.scale[0], ohms * self.scale[1]
+        v = self.v_max
+        sign = -1.0 if self.up else 1.0
+        return PointValues(
             ohms=ohms,
             band=(r_lo, r_hi),
-            current_max=self._current_max(lo),
-            current_min=self._current_min(hi),
-            power=self._power(lo),
-            idle=self._idle(hi),
-            edge=self._edge(hi),
+            current_max=None if v is None else v / r_lo,
+            current_min=None if self.v_low is None else self.v_low / r_hi,
+            power=None if v is None else v * v / r_lo,
+            idle=self.v_rail + sign * self.leak * r_hi if self.idle_known else None,
+            edge=None if self.rc is None else r_hi * self.rc,
         )
 
-    def _current_max(self, lo: Term) -> Figure:
-        formula = "I_max = V_max / R_lo"
-        span = self.span_max
-        if span is None:
-            return _none("I_max", formula, "Nothing on the net holds the line the other way.")
-        if isinstance(span, Missing):
-            return _none("I_max", formula, "", (span,))
-        r = lo.value.magnitude("ohm")
-        sub = f"({span.text}) / {fmt(lo.value, 'ohm')}"
-        return _figure("I_max", span.volts / r, "A", formula, sub, (*span.terms, lo))
 
-    def _current_min(self, hi: Term) -> Figure:
-        formula = "I_min = V_min / R_hi"
-        span = self.span_min
-        if span is None:
-            return _none("I_min", formula, "No contact on the net closes against the pull.")
-        if isinstance(span, Missing):
-            return _none("I_min", formula, "", (span,))
-        r = hi.value.magnitude("ohm")
-        sub = f"({span.text}) / {fmt(hi.value, 'ohm')}"
-        note = "The least current through a closed contact (its wetting current)."
-        return _figure("I_min", span.volts / r, "A", formula, sub, (*span.terms, hi), note)
+def _point(ctx: _Context, ohms: float, label: str) -> OperatingPoint:
+    """The full operating point at ``ohms``: the floats of :meth:`_Context.values` with their
+    formulas, substitutions and sources."""
+    vals = ctx.values(ohms)
+    r_lo, r_hi = vals.band
+    lo = Term("R_lo", _band_value(r_lo, label, "lowest"))
+    hi = Term("R_hi", _band_value(r_hi, label, "highest"))
+    return OperatingPoint(
+        ohms=ohms,
+        band=vals.band,
+        current_max=_current("I_max", ctx.span_max, lo, vals.current_max,
+                             "Nothing on the net holds the line the other way.", ""),
+        current_min=_current("I_min", ctx.span_min, hi, vals.current_min,
+                             "No contact on the net closes against the pull.",
+                             "The least current through a closed contact (its wetting current)."),
+        power=_power(ctx, lo, vals.power),
+        idle=_idle(ctx, hi, vals.idle),
+        edge=_edge(ctx, hi, vals.edge),
+    )  # fmt: skip
 
-    def _power(self, lo: Term) -> Figure:
-        formula = "P = V_max² / R_lo"
-        span = self.span_max
-        if span is None:
-            return _none("P", formula, "Only leakage flows: the resistor stays cold.")
-        if isinstance(span, Missing):
-            return _none("P", formula, "", (span,))
-        watts = span.volts**2 / lo.value.magnitude("ohm")
-        sub = f"({span.text})² / {fmt(lo.value, 'ohm')}"
-        res, rules = self.network.resistor, self.network.rules
-        terms: tuple[Term, ...] = (*span.terms, lo)
-        note = ""
-        if res.power_rating is not None:
-            allowed = res.power_rating.magnitude("W") * rules.derating.magnitude("")
-            share = watts / allowed if allowed > 0 else math.inf
-            derated = rules.derating.magnitude("") * 100
-            note = (
-                f"{share * 100:.3g} % of the {eng(allowed, 'W')} the rules allow "
-                f"({fmt(res.power_rating, 'W')} rated, derated to {derated:.3g} %)."
-            )
-            terms = (*terms, Term("P_rated", res.power_rating), Term("derating", rules.derating))
-        return _figure("P", watts, "W", formula, sub, terms, note)
 
-    def _idle(self, hi: Term) -> Figure:
-        cur = "ΣI_high" if self.up else "ΣI_low"
-        formula = f"V_idle = V_min − {cur} · R_hi" if self.up else f"V_idle = {cur} · R_hi"
-        if self.leak_missing:
-            return _none("V_idle", formula, "", self.leak_missing)
-        if not self.network.inputs and not self.network.drivers:
-            return _none("V_idle", formula, "No input on the net.")
-        drop = self.leak * hi.value.magnitude("ohm")
-        leak_text = eng(self.leak, "A")
-        terms: tuple[Term, ...] = (*self.leak_terms, hi)
-        if self.up:
-            v_min = self.network.rail.v_min
-            volts = v_min.magnitude("V") - drop
-            sub = f"{fmt(v_min, 'V')} − {leak_text} · {fmt(hi.value, 'ohm')}"
-            terms = (Term("V_min", v_min), *terms)
+def _current(
+    symbol: str, span: Span | Missing | None, r: Term, amps: float | None, absent: str, note: str
+) -> Figure:
+    formula = f"{symbol} = {'V_max / R_lo' if symbol == 'I_max' else 'V_min / R_hi'}"
+    if span is None:
+        return _none(symbol, formula, absent)
+    if isinstance(span, Missing) or amps is None:
+        return _none(symbol, formula, "", (span,) if isinstance(span, Missing) else ())
+    sub = f"({span.text}) / {eng(r.value.magnitude('ohm'), 'Ω')}"
+    return _figure(symbol, amps, "A", formula, sub, (*span.terms, r), note)
+
+
+def _power(ctx: _Context, lo: Term, watts: float | None) -> Figure:
+    formula = "P = V_max² / R_lo"
+    span = ctx.span_max
+    if span is None:
+        return _none("P", formula, "Only leakage flows: the resistor stays cold.")
+    if isinstance(span, Missing) or watts is None:
+        return _none("P", formula, "", (span,) if isinstance(span, Missing) else ())
+    sub = f"({span.text})² / {eng(lo.value.magnitude('ohm'), 'Ω')}"
+    res, rules = ctx.network.resistor, ctx.network.rules
+    terms: tuple[Term, ...] = (*span.terms, lo)
+    note = ""
+    if res.power_rating is not None:
+        allowed = res.power_rating.magnitude("W") * rules.derating.magnitude("")
+        share = watts / allowed if allowed > 0 else math.inf
+        derated = rules.derating.magnitude("") * 100
+        note = (
+            f"{share * 100:.3g} % of the {eng(allowed, 'W')} the rules allow "
+            f"({fmt(res.power_rating, 'W')} rated, derated to {derated:.3g} %)."
+        )
+        terms = (*terms, Term("P_rated", res.power_rating), Term("derating", rules.derating))
+    return _figure("P", watts, "W", formula, sub, terms, note)
+
+
+def _idle(ctx: _Context, hi: Term, volts: float | None) -> Figure:
+    cur = "ΣI_high" if ctx.up else "ΣI_low"
+    formula = f"V_idle = V_min − {cur} · R_hi" if ctx.up else f"V_idle = {cur} · R_hi"
+    if ctx.leak_missing:
+        return _none("V_idle", formula, "", ctx.leak_missing)
+    if volts is None:
+        return _none("V_idle", formula, "No input on the net.")
+    r_hi = hi.value.magnitude("ohm")
+    drop = ctx.leak * r_hi
+    product = f"{eng(ctx.leak, 'A')} · {eng(r_hi, 'Ω')}"
+    terms: tuple[Term, ...] = (*ctx.leak_terms, hi)
+    if ctx.up:
+        v_min = ctx.network.rail.v_min
+        sub = f"{eng(ctx.v_rail, 'V')} − {product}"
+        terms = (Term("V_min", v_min), *terms)
+    else:
+        sub = product
+    note = ""
+    if ctx.threshold is not None:
+        thr, room = ctx.threshold
+        gap = room - drop  # pull-up: V − ΣI·R_hi − V_IH; pull-down: V_IL − ΣI·R_hi
+        side = "above" if ctx.up else "below"
+        level = f"{thr.symbol} = {fmt(thr.value, 'V')}"
+        if gap >= 0:
+            note = f"{eng(gap, 'V')} {side} {level}."
         else:
-            volts = drop
-            sub = f"{leak_text} · {fmt(hi.value, 'ohm')}"
-        note = ""
-        if self.threshold is not None:
-            thr, room = self.threshold
-            gap = room - drop  # pull-up: V − ΣI·R_hi − V_IH; pull-down: V_IL − ΣI·R_hi
-            side = "above" if self.up else "below"
-            if gap >= 0:
-                note = f"{eng(gap, 'V')} {side} {thr.symbol} = {fmt(thr.value, 'V')}."
-            else:
-                note = f"Not {side} {thr.symbol} = {fmt(thr.value, 'V')}: the level does not hold."
-            terms = (*terms, thr)
-        return _figure("V_idle", volts, "V", formula, sub, terms, note)
+            note = f"Not {side} {level}: the level does not hold."
+        terms = (*terms, thr)
+    return _figure("V_idle", volts, "V", formula, sub, terms, note)
 
-    def _edge(self, hi: Term) -> Figure:
-        network = self.network
-        if network.rules.i2c_mode and self.up:
-            formula = f"t_r = {I2C_RISE_CONSTANT} · R_hi · C_b"
-            note = "The I2C rise time, 30 % to 70 % of VDD (UM10204 §7.1)."
-            k = I2C_RISE_CONSTANT
-            return self._timed("t_r", formula, hi, k, f"{k}", note, ())
-        if self.edge is None:
-            formula = "t = R_hi · C · ln(…)"
-            return _none("t_edge", formula, self.edge_note, self.edge_missing)
-        e = self.edge
-        formula = f"t = R_hi · C · {e.formula}"
-        way = "Rising" if self.up else "Falling"
+
+def _edge(ctx: _Context, hi: Term, seconds: float | None) -> Figure:
+    extra: tuple[Term, ...] = ()
+    if ctx.i2c:
+        symbol, formula = "t_r", f"t_r = {I2C_RISE_CONSTANT} · R_hi · C_b"
+        note = "The I2C rise time, 30 % to 70 % of VDD (UM10204 §7.1)."
+        factor_text = f"{I2C_RISE_CONSTANT}"
+    elif ctx.edge is None:
+        return _none("t_edge", "t = R_hi · C · ln(…)", ctx.edge_note, ctx.edge_missing)
+    else:
+        e = ctx.edge
+        symbol, formula = "t_edge", f"t = R_hi · C · {e.formula}"
+        way = "Rising" if ctx.up else "Falling"
         note = f"{way} edge {e.start}, to the far end of the undefined band."
-        return self._timed("t_edge", formula, hi, e.ln, e.substituted, note, e.terms)
-
-    def _timed(
-        self, symbol: str, formula: str, hi: Term, factor: float, factor_text: str, note: str,
-        extra: tuple[Term, ...],
-    ) -> Figure:  # fmt: skip
-        cap = self.cap
-        if cap.missing:
-            return _none(symbol, formula, "", cap.missing)
-        if cap.farads <= 0:
-            return _none(symbol, formula, "No capacitance is known on the net.")
-        if math.isinf(factor):
-            return _none(symbol, formula, "The edge never reaches the input's high level.")
-        seconds = hi.value.magnitude("ohm") * cap.farads * factor
-        sub = f"{fmt(hi.value, 'ohm')} · {eng(cap.farads, 'F')} · {factor_text}"
-        return _figure(symbol, seconds, "s", formula, sub, (hi, *cap.terms, *extra), note)
+        factor_text, extra = e.substituted, e.terms
+    cap = ctx.cap
+    if cap.missing:
+        return _none(symbol, formula, "", cap.missing)
+    if cap.farads <= 0:
+        return _none(symbol, formula, "No capacitance is known on the net.")
+    if seconds is None:
+        return _none(symbol, formula, "The edge never reaches the input's high level.")
+    sub = f"{eng(hi.value.magnitude('ohm'), 'Ω')} · {eng(cap.farads, 'F')} · {factor_text}"
+    return _figure(symbol, seconds, "s", formula, sub, (hi, *cap.terms, *extra), note)
 
 
 def _band_value(ohms: float, label: str, end: str) -> Sourced:
@@ -284,22 +301,25 @@ def _worst_edge(network: PullNetwork) -> tuple[Edge | None, str, tuple[Missing, 
     return worst, "", ()
 
 
-def operating_point(network: PullNetwork, ohms: float | None = None) -> OperatingPoint:
-    """The operating point at ``ohms`` (default: the fitted value) over its whole band."""
-    return operating_points(network, () if ohms is None else (ohms,), fitted=ohms is None)[0]
+def operating_point(network: PullNetwork) -> OperatingPoint:
+    """The operating point at the fitted value over its whole band, every figure sourced."""
+    res = network.resistor
+    return _point(_Context(network), res.ohms.magnitude("ohm"), "/".join(res.refs))
 
 
-def operating_points(
-    network: PullNetwork, values: Iterable[float], *, fitted: bool = False
-) -> tuple[OperatingPoint, ...]:
-    """Operating points at each of ``values`` (ohms), and first at the fitted value when
-    ``fitted``; the candidates' bands use the fitted part's tolerance and TCR."""
+def analyse(
+    network: PullNetwork, values: Iterable[float]
+) -> tuple[OperatingPoint, tuple[PointValues, ...]]:
+    """The full operating point at the fitted value and the numbers at each of ``values``,
+    sharing the work that does not depend on the resistance."""
     ctx = _Context(network)
     res = network.resistor
-    out = []
-    if fitted:
-        out.append(ctx.point(res.ohms.magnitude("ohm"), "/".join(res.refs)))
-    tol = res.tolerance.magnitude("")
-    for v in values:
-        out.append(ctx.point(v, f"{eng(v, 'Ω')} at ±{tol * 100:.3g} %"))
-    return tuple(out)
+    point = _point(ctx, res.ohms.magnitude("ohm"), "/".join(res.refs))
+    return point, tuple(ctx.values(v) for v in values)
+
+
+def operating_points(network: PullNetwork, values: Iterable[float]) -> tuple[PointValues, ...]:
+    """The operating point's numbers at each of ``values`` (ohms, e.g. the E-series candidates);
+    the bands use the fitted part's tolerance and TCR."""
+    ctx = _Context(network)
+    return tuple(ctx.values(v) for v in values)

@@ -27,6 +27,7 @@ __all__ = [
     "NetworkChange",
     "NetworkResult",
     "OperatingPoint",
+    "PointValues",
     "Recommendation",
     "ResistorVoltage",
     "ReviewResult",
@@ -205,6 +206,44 @@ class OperatingPoint:
     def figures(self) -> tuple[Figure, ...]:
         return (self.current_max, self.current_min, self.power, self.idle, self.edge)
 
+    def values(self) -> PointValues:
+        """The same numbers as plain floats, like a candidate's."""
+
+        def num(f: Figure, unit: str) -> float | None:
+            return None if f.value is None else f.value.magnitude(unit)
+
+        return PointValues(
+            self.ohms,
+            self.band,
+            num(self.current_max, "A"),
+            num(self.current_min, "A"),
+            num(self.power, "W"),
+            num(self.idle, "V"),
+            num(self.edge, "s"),
+        )
+
+
+@dataclass(frozen=True)
+class PointValues:
+    """An operating point's numbers at one resistance, in base units; None where a figure
+    does not apply or is unknown. Candidates carry only these: their formulas, terms and
+    provenance are those of the network's :class:`OperatingPoint`, with their own band."""
+
+    ohms: float
+    band: tuple[float, float]
+    current_max: float | None  # A
+    current_min: float | None  # A
+    power: float | None  # W
+    idle: float | None  # V
+    edge: float | None  # s
+
+    #: Units of the five figures, in order.
+    UNITS = ("A", "A", "W", "V", "s")
+
+    @property
+    def figures(self) -> tuple[float | None, ...]:
+        return (self.current_max, self.current_min, self.power, self.idle, self.edge)
+
 
 @dataclass(frozen=True)
 class Recommendation:
@@ -216,7 +255,7 @@ class Recommendation:
     pick: float | None
     policy: str  # "centre" or "low-current"
     reason: str  # one sentence on why the pick
-    points: tuple[OperatingPoint, ...] = ()  # the operating point of each candidate, in order
+    points: tuple[PointValues, ...] = ()  # each candidate's operating-point numbers, in order
 
 
 @dataclass(frozen=True)

@@ -361,7 +361,7 @@ def review_circuit(
                 f"is open{tail}",
             )
         )
-    hazardous, voltages = _hazards(circuit, infos, rules, resolver, chosen)
+    hazardous, voltages = _hazards(circuit, infos, resolver, chosen)
     findings.extend(voltage_findings(voltages, rules))
     files = tuple(sorted(circuit.files.items()))
     review_result = ReviewResult(
@@ -381,12 +381,11 @@ def review_circuit(
 def _hazards(
     circuit: Circuit,
     infos: dict[str, PartInfo],
-    rules: Rules,
     resolver: Resolver,
     chosen: Callable[[Iterable[str]], bool],
 ) -> tuple[tuple[HazardousNet, ...], tuple[ResistorVoltage, ...]]:
     """Nets at hazardous voltage, and the working-voltage check of the chosen resistors on them."""
-    found, checks = hazards_of(circuit, infos, rules, resolver.rail_of)
+    found, checks = hazards_of(circuit, infos, resolver.hazard)
     nets = tuple(h.result() for _, h in sorted(found.items()))
     return nets, tuple(c for c in checks if chosen([c.ref]))
 

@@ -20,6 +20,7 @@ __all__ = [
     "format_percent",
     "format_quantity",
     "format_sourced",
+    "format_value",
     "format_window",
 ]
 
@@ -122,6 +123,17 @@ def format_quantity(value: Any) -> str:
         if value.check(ureg(base).dimensionality):
             return engineering(float(value.to(base).magnitude), symbol)
     return f"{value:~P}"
+
+
+_SYMBOL = {"A": "A", "W": "W", "V": "V", "s": "s", "F": "F", "ohm": "Ω"}
+
+
+def format_value(x: float, unit: str) -> str:
+    """A float in a base unit ("A", "W", "V", "s", "F", "ohm") as :func:`format_quantity`
+    prints the same quantity, without building one (the operating-point tables hold many)."""
+    if unit == "V" and 0.1 <= abs(x) < 1000:
+        return f"{_digits(x, 4)}{NBSP}V"
+    return engineering(x, _SYMBOL[unit])
 
 
 def format_sourced(value: Sourced) -> str:

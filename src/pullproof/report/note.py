@@ -15,7 +15,7 @@ import hashlib
 import os
 import re
 from collections.abc import Iterable
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from functools import lru_cache
 from importlib import resources
 from pathlib import Path
@@ -37,7 +37,7 @@ from ..results import (
     Figure,
     Finding,
     NetworkResult,
-    OperatingPoint,
+    PointValues,
     ReviewResult,
     Verdict,
 )
@@ -48,6 +48,7 @@ from .format import (
     format_ohms,
     format_percent,
     format_sourced,
+    format_value,
     format_window,
 )
 
@@ -398,7 +399,8 @@ def _operating(nr: NetworkResult, reg: _Registry) -> OperatingView | None:
                        tuple(reg.ref(t.symbol, t.value) for t in f.terms), f.note, f.missing)
         )  # fmt: skip
     refs = "/".join(nr.network.resistor.refs)
-    rows = [_point_row(op, f"fitted {refs}", fitted=True, pick=False)]
+    fitted = _point_row(op.values(), f"fitted {refs}", fitted=True, pick=False)
+    rows = [replace(fitted, cells=tuple(_cell(f) for f in op.figures))]  # "unknown" vs "—"
     rec = nr.recommendation
     if rec is not None:
         for p in rec.points:
@@ -408,16 +410,13 @@ def _operating(nr: NetworkResult, reg: _Registry) -> OperatingView | None:
     return OperatingView(tuple(columns), tuple(rows))
 
 
-def _point_row(op: OperatingPoint, label: str, *, fitted: bool, pick: bool) -> PointRow:
-    return PointRow(
-        label,
-        format_ohms(op.ohms),
-        format_rkm(op.ohms),
-        f"{format_ohms(op.band[0])} … {format_ohms(op.band[1])}",
-        tuple(_cell(f) for f in op.figures),
-        fitted,
-        pick,
+def _point_row(p: PointValues, label: str, *, fitted: bool, pick: bool) -> PointRow:
+    cells = tuple(
+        "—" if x is None else format_value(x, unit)
+        for x, unit in zip(p.figures, PointValues.UNITS, strict=True)
     )
+    band = f"{format_ohms(p.band[0])} … {format_ohms(p.band[1])}"
+    return PointRow(label, format_ohms(p.ohms), format_rkm(p.ohms), band, cells, fitted, pick)
 
 
 def _network_view(nr: NetworkResult, anchor: str) -> NetworkView:

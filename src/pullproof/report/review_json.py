@@ -18,6 +18,7 @@ from ..results import (
     Finding,
     NetworkResult,
     OperatingPoint,
+    PointValues,
     Recommendation,
     ReviewResult,
     Skipped,
@@ -86,20 +87,24 @@ def _operating(op: OperatingPoint | None) -> dict[str, Any] | None:
     }
 
 
-def _brief(op: OperatingPoint | None) -> dict[str, Any] | None:
+def _brief(p: PointValues | None) -> dict[str, Any] | None:
     """A candidate's operating point as numbers in base units (formulas and terms are those
     of the network's own operating point, with the candidate's band)."""
-    if op is None:
+    if p is None:
         return None
+
+    def num(x: float | None) -> float | None:
+        return x if x is None or math.isfinite(x) else None
+
     return {
-        "ohms": op.ohms,
-        "rkm": format_rkm(op.ohms),
-        "band_ohms": list(op.band),
-        "current_max_amps": _num(op.current_max.value, "A"),
-        "current_min_amps": _num(op.current_min.value, "A"),
-        "power_watts": _num(op.power.value, "W"),
-        "idle_volts": _num(op.idle.value, "V"),
-        "edge_seconds": _num(op.edge.value, "s"),
+        "ohms": p.ohms,
+        "rkm": format_rkm(p.ohms),
+        "band_ohms": list(p.band),
+        "current_max_amps": num(p.current_max),
+        "current_min_amps": num(p.current_min),
+        "power_watts": num(p.power),
+        "idle_volts": num(p.idle),
+        "edge_seconds": num(p.edge),
     }
 
 
