@@ -68,7 +68,8 @@ def _figure(
 ) -> Figure:  # fmt: skip
     where = f"{formula} = {substituted}"
     src = Provenance(Origin.DERIVED, where, _weakest(terms))
-    return Figure(symbol, Sourced(Q_(value, unit), src), formula, substituted, terms, note)
+    return Figure(symbol, Sourced(Q_(value, unit), src), formula, substituted, terms, note,
+                  unit=unit)  # fmt: skip
 
 
 def _none(symbol: str, formula: str, note: str, missing: Iterable[Missing] = ()) -> Figure:

@@ -188,6 +188,12 @@ class Figure:
     terms: tuple[Term, ...]
     note: str = ""
     missing: tuple[Missing, ...] = ()
+    unit: str = ""  # the base unit ``value`` is in: "A", "W", "V" or "s"
+
+    @property
+    def number(self) -> float | None:
+        """The value as a float in ``unit`` (None when there is none)."""
+        return None if self.value is None else float(self.value.value.magnitude)
 
 
 @dataclass(frozen=True)
@@ -209,18 +215,7 @@ class OperatingPoint:
     def values(self) -> PointValues:
         """The same numbers as plain floats, like a candidate's."""
 
-        def num(f: Figure, unit: str) -> float | None:
-            return None if f.value is None else f.value.magnitude(unit)
-
-        return PointValues(
-            self.ohms,
-            self.band,
-            num(self.current_max, "A"),
-            num(self.current_min, "A"),
-            num(self.power, "W"),
-            num(self.idle, "V"),
-            num(self.edge, "s"),
-        )
+        return PointValues(self.ohms, self.band, *(f.number for f in self.figures))
 
 
 @dataclass(frozen=True)

@@ -26,7 +26,7 @@ from markupsafe import Markup
 
 from .. import __version__
 from ..errors import PullproofError
-from ..eseries import format_rkm
+from ..eseries import format_rkm as _format_rkm
 from ..hazard import safety_caution
 from ..network import Missing, PullNetwork
 from ..provenance import Sourced
@@ -51,6 +51,9 @@ from .format import (
     format_value,
     format_window,
 )
+
+# E-series values recur across networks; the code is the same each time.
+format_rkm = lru_cache(maxsize=4096)(_format_rkm)
 
 __all__ = [
     "FileDigest",
@@ -186,9 +189,20 @@ class _Registry:
 
     def __init__(self) -> None:
         self._index: dict[tuple[str, str, str, str, str], ProvEntry] = {}
+        # Formatting a quantity is slow and the same Sourced objects recur across limits,
+        # checks and the operating point: format each once (keyed by identity; the result
+        # holds them alive while the registry is in use).
+        self._texts: dict[int, tuple[Sourced, str]] = {}
+
+    def _text(self, value: Sourced) -> str:
+        known = self._texts.get(id(value))
+        if known is None or known[0] is not value:
+            known = (value, format_sourced(value))
+            self._texts[id(value)] = known
+        return known[1]
 
     def ref(self, symbol: str, value: Sourced) -> TermRef:
-        text = format_sourced(value)
+        text = self._text(value)
         src = value.source
         key = (symbol, text, src.where, src.status.value, src.reason)
         entry = self._index.get(key)
@@ -381,8 +395,9 @@ _COLUMNS = (
 
 
 def _cell(f: Figure) -> str:
-    if f.value is not None:
-        return format_sourced(f.value)
+    number = f.number
+    if number is not None:
+        return format_value(number, f.unit)
     return "unknown" if f.missing else "—"
 
 

@@ -3,9 +3,10 @@
 from __future__ import annotations
 
 import math
+from functools import lru_cache
 from typing import Any
 
-from ..eseries import format_rkm
+from ..eseries import format_rkm as _format_rkm
 from ..hazard import safety_caution
 from ..network import Missing
 from ..provenance import Sourced
@@ -25,6 +26,9 @@ from ..results import (
     Term,
 )
 
+# E-series values recur across networks; the code is the same each time.
+format_rkm = lru_cache(maxsize=4096)(_format_rkm)
+
 __all__ = ["SCHEMA", "review_json"]
 
 SCHEMA = "pullproof.review/1"
@@ -37,10 +41,15 @@ def _num(s: Sourced | None, unit: str) -> float | None:
     return x if math.isfinite(x) else None  # an unknown value is null, never NaN
 
 
+@lru_cache(maxsize=256)
+def _unit_text(units: Any) -> str:
+    return f"{units:~P}"  # pint's unit formatting is slow, and a review has few units
+
+
 def _quantity(s: Sourced) -> tuple[float, str]:
     q = s.value
     value = float(q.magnitude) if hasattr(q, "magnitude") else float(q)
-    return value, f"{q.units:~P}" if hasattr(q, "units") else ""
+    return value, _unit_text(q.units) if hasattr(q, "units") else ""
 
 
 def _source(s: Sourced) -> dict[str, str]:
