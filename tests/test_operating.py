@@ -217,7 +217,10 @@ def test_json_carries_the_operating_point_and_candidate_codes() -> None:
     assert [m["what"] for m in op["edge_time"]["missing"]] == ["C_in of U1 pin 1"]
     rec = n["recommendation"]
     assert [c["ohms"] for c in rec["candidates"]] == rec["candidates_ohms"]
-    assert all(c["operating_point"]["ohms"] == c["ohms"] for c in rec["candidates"])
+    # Ohm's law at each candidate's lowest resistance: 24 V / R_lo
+    for c in rec["candidates"]:
+        brief = c["operating_point"]
+        assert brief["current_max_amps"] == pytest.approx(24 / brief["band_ohms"][0], rel=REL)
     assert rec["pick_rkm"] == next(
         c["rkm"] for c in rec["candidates"] if c["ohms"] == rec["pick_ohms"]
     )

@@ -97,8 +97,9 @@ def _operating(op: OperatingPoint | None) -> dict[str, Any] | None:
 
 
 def _brief(p: PointValues | None) -> dict[str, Any] | None:
-    """A candidate's operating point as numbers in base units (formulas and terms are those
-    of the network's own operating point, with the candidate's band)."""
+    """A candidate's operating point as numbers in base units (its value and code are the
+    candidate's; formulas and terms are those of the network's own operating point, with the
+    candidate's band)."""
     if p is None:
         return None
 
@@ -106,8 +107,6 @@ def _brief(p: PointValues | None) -> dict[str, Any] | None:
         return x if x is None or math.isfinite(x) else None
 
     return {
-        "ohms": p.ohms,
-        "rkm": format_rkm(p.ohms),
         "band_ohms": list(p.band),
         "current_max_amps": num(p.current_max),
         "current_min_amps": num(p.current_min),
