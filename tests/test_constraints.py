@@ -391,13 +391,14 @@ def test_rising_edge_from_the_lowest_driver_level() -> None:
     assert "V_OL(U9)" in b.corner
 
 
-def test_default_driver_level_does_not_tighten_the_edge() -> None:
+@pytest.mark.parametrize("origin", ["default", "assumed"])
+def test_default_driver_level_does_not_tighten_the_edge(origin: str) -> None:
     # A default V_OL may not set a hard limit: the edge is timed from V_IL,max = 0.3 V, so
     # R ≤ ln 9 · 1 µs / (1 nF · ln((1 − 0.3)/(1 − 0.9))) = 1 kΩ · ln 9 / ln 7 (RC step response).
     from pullproof.provenance import Origin, Provenance, Sourced
     from pullproof.units import Q_
 
-    guessed = Sourced(Q_(0.1, "V"), Provenance(Origin.DEFAULT, "default transistor V_OL"))
+    guessed = Sourced(Q_(0.1, "V"), Provenance(Origin(origin), "default transistor V_OL"))
     d = driver("Q3", "transistor")
     b = only(edge_rate(_driven(replace(d, v_ol=guessed))))
     assert b.ohms == pytest.approx(1e3 * math.log(9) / math.log(7), rel=REL)

@@ -15,6 +15,7 @@ from collections.abc import Iterable, Mapping
 from dataclasses import replace
 
 from . import eseries
+from .assumed import assumed_band, nominal_meets, soften
 from .constraints import BUILTIN, Constraint, ConstraintPluginError
 from .constraints._common import band, dedupe, eng, pct
 from .errors import RulesError
@@ -98,7 +99,7 @@ def _run(reg: Mapping[str, Constraint], network: PullNetwork) -> list[Bound | Ch
     out: list[Bound | Check] = []
     for cid, c in reg.items():
         if id(c) in builtins:
-            out.extend(c(network))
+            out.extend(soften(item) for item in c(network))
             continue
         try:
             found = tuple(c(network))
@@ -111,7 +112,7 @@ def _run(reg: Mapping[str, Constraint], network: PullNetwork) -> list[Bound | Ch
                 raise ConstraintPluginError(
                     f"constraint {cid!r} returned {type(item).__name__}; expected Bound or Check"
                 )
-        out.extend(found)
+        out.extend(soften(item) for item in found)
     return out
 
 
@@ -162,6 +163,10 @@ def _judge(
             f"{_limit(hi_b, aside=True)}."
         )
     hard_bad = [b for b in bounds if b.hard and _violated(b, r_lo, r_hi)]
+    band_rests_on = assumed_band(res)
+    nominal = res.ohms.magnitude("ohm")
+    band_only = [b for b in hard_bad if band_rests_on and nominal_meets(b, nominal)]
+    hard_bad = [b for b in hard_bad if b not in band_only]
     if hard_bad:
         b = max(hard_bad, key=lambda x: _shortfall(x, r_lo, r_hi))
         return Verdict.FAIL, f"{_reach(who, b, r_lo, r_hi)}, {_side(b)} the {_limit(b)}."
@@ -172,12 +177,23 @@ def _judge(
         m = missing[0]
         more = f" (and {len(missing) - 1} more)" if len(missing) > 1 else ""
         return Verdict.INCOMPLETE, f"Cannot judge yet: {m.what} is unknown{more}; {m.hint}."
+    if band_only:
+        # The nominal value meets the limit; only the assumed tolerance or TCR carries the
+        # band across it, and an assumption never makes a hard fail.
+        b = band_only[0]
+        return Verdict.MARGINAL, (
+            f"{_reach(who, b, r_lo, r_hi)}, {_side(b)} the {_limit(b)}, but only through the "
+            f"assumed {' and '.join(band_rests_on)}; state the part's Tolerance and TCR to decide."
+        )
     soft_bad = [b for b in bounds if not b.hard and _violated(b, r_lo, r_hi)]
     soft_bad_checks = [c for c in checks if not c.hard and c.ok is False]
     if soft_bad:
         b = soft_bad[0]
         reach = _reach(who, b, r_lo, r_hi)
-        return Verdict.MARGINAL, f"Hard limits are met, but {reach}, {_side(b)} the {_limit(b)}."
+        rests = f"; that limit rests on {', '.join(b.assumed)}" if b.assumed else ""
+        return Verdict.MARGINAL, (
+            f"Hard limits are met, but {reach}, {_side(b)} the {_limit(b)}{rests}."
+        )
     if soft_bad_checks:
         c = soft_bad_checks[0]
         text = c.sentence or f"{c.title.lower()} is missed"

@@ -21,7 +21,7 @@ from dataclasses import dataclass
 
 from .circuit import Circuit, Part
 from .families.match import PartInfo, PartKind, ResistorInfo
-from .provenance import Origin
+from .provenance import Origin, Sourced
 from .results import Finding, HazardousNet, ResistorVoltage, ReviewResult, Verdict
 from .rules import RailSpec, Rules
 from .units import format_si
@@ -191,7 +191,21 @@ def _check(
     ok = abs(share) <= wv
     word = "within" if ok else "above"
     text = f"{across}, {word} its {format_si(wv, 'V', sig=4)} working voltage ({kind})"
-    return ResistorVoltage(ref, h.net, chain, share, h.spec.ac, wv, ok, text)
+    used: list[Sourced] = [h.spec.nominal, mine.working_voltage] if h.spec.nominal else []
+    nominal = v * _nominal(mine) / sum(_nominal(i) for i in res.values())
+    if abs(nominal) <= wv:  # only the tolerances make it fail: they count too
+        used += [i.tolerance for i in res.values() if i is not None]
+    rests_on = tuple(dict.fromkeys(u.source.where for u in used if u.source.origin in _UNSTATED))
+    return ResistorVoltage(ref, h.net, chain, share, h.spec.ac, wv, ok, text, rests_on)
+
+
+# Origins of values nothing in the design states: a failure resting on one is not certain.
+_UNSTATED = frozenset({Origin.DEFAULT, Origin.ASSUMED})
+
+
+def _nominal(info: ResistorInfo | None) -> float:
+    assert info is not None and info.ohms is not None
+    return info.ohms.magnitude("ohm")
 
 
 def _top(info: ResistorInfo | None) -> float:
@@ -204,20 +218,22 @@ def _bottom(info: ResistorInfo | None) -> float:
     return info.ohms.magnitude("ohm") * (1 - info.tolerance.magnitude(""))
 
 
-def voltage_findings(checks: tuple[ResistorVoltage, ...], rules: Rules) -> list[Finding]:
-    """Failed or unknown resistor working-voltage checks as findings. A failure that rests
-    on the default mains voltage is marginal and says so: a default never makes a hard fail."""
-    mains = rules.get("mains_voltage")
-    assumed = mains.source.origin is Origin.DEFAULT
+def voltage_findings(checks: tuple[ResistorVoltage, ...]) -> list[Finding]:
+    """Failed or unknown resistor working-voltage checks as findings. A failure that rests on
+    a value nothing states (the default mains voltage, a working voltage taken from the chip
+    size) is marginal and says so: a default never makes a hard fail."""
     out = []
     for c in checks:
         if c.ok is True:
             continue
         severity = Verdict.INCOMPLETE if c.ok is None else Verdict.FAIL
         text = c.text
-        if c.ok is False and assumed and rules.is_mains(c.net):
+        if c.ok is False and c.assumed:
             severity = Verdict.MARGINAL
-            text += "; this rests on the default mains voltage: set mains_voltage in the rules"
+            text += (
+                f"; this rests on {', '.join(c.assumed)}, which no field, part library or rules "
+                "key states: state them to make it certain"
+            )
         out.append(Finding("resistor-working-voltage", severity, c.net, c.chain, text))
     return out
 

@@ -147,6 +147,7 @@ class Bound:
     # A clause naming the parts, completing "the 3.2 kΩ …": "at which SW3 still gets its 1 mA
     # wetting current". Reasons are built from it; "" falls back to the title.
     says: str = ""
+    assumed: tuple[str, ...] = ()  # assumed values it rests on (then it is soft)
 
     @property
     def evaluated(self) -> bool:
@@ -171,6 +172,7 @@ class Check:
     # The outcome as a plain sentence naming the parts, without the final full stop: "the pull
     # rail reaches 5.25 V but U2 pin 3 tolerates at most 3.5 V". "" falls back to the formula.
     sentence: str = ""
+    assumed: tuple[str, ...] = ()  # assumed values it rests on (then it is soft)
 
 
 @dataclass(frozen=True)
@@ -318,15 +320,24 @@ class ResistorVoltage:
     working: float | None  # its working voltage, V
     ok: bool | None  # None: a value is unknown
     text: str  # one sentence naming the parts
+    assumed: tuple[str, ...] = ()  # values nothing states that the result rests on
 
 
 @dataclass(frozen=True)
 class Skipped:
-    """A resistor tied to a rail that is deliberately not judged as a logic pull."""
+    """A resistor that is deliberately not judged as a logic pull (tied to a rail, between
+    supplies, or not fitted), with the reason."""
 
-    ref: str
+    ref: str  # the part's reference
     net: str
     reason: str
+    element: str = ""  # "1-8" for an element of a resistor array
+
+    @property
+    def label(self) -> str:
+        """How reports name it: ``R9``, or ``RN1 (1–8)``."""
+        a, _, b = self.element.partition("-")
+        return f"{self.ref} ({a}–{b})" if self.element else self.ref
 
 
 @dataclass(frozen=True)

@@ -8,9 +8,9 @@ leaves it: an open-drain or open-collector driver's V_OL, a transistor's V_OL (i
 saturation voltage) or an optocoupler's V_CE(sat); with several, the lowest, which makes
 the longest edge. A contact's edge is timed from V_IL,max, through the undefined band only:
 a contact bounces, so below the band there is no clean edge to time. A driver level that is
-only a default, or that lies above V_IL,max, is not used either (a default may not tighten
-a hard limit); the text then says why. A pull-down's falling edge runs from V_IH,min to
-V_IL,max.
+only a default or an assumption, or that lies above V_IL,max, is not used either (a default
+may not tighten a hard limit); the text then says why. A pull-down's falling edge runs from
+V_IH,min to V_IL,max.
 """
 
 from __future__ import annotations
@@ -56,7 +56,7 @@ def edge_start(network: PullNetwork) -> EdgeStart:
             None, "", "", "The drivers' low levels are unknown: the edge is timed from V_IL,max."
         )
     low, name, ref = min(levels, key=lambda x: x[0].magnitude("V"))
-    if low.source.origin is Origin.DEFAULT:
+    if low.source.origin in (Origin.DEFAULT, Origin.ASSUMED):
         return EdgeStart(
             None,
             name,
