@@ -95,7 +95,10 @@ def _cmd_review(args: argparse.Namespace) -> int:
         log = json.dumps(sarif_log(result, circuit), indent=1, ensure_ascii=False)
         write_report(args.sarif, log + "\n", "SARIF log", result.inputs)
     if args.json:
-        print(json.dumps(review_json(result), indent=1, ensure_ascii=False))
+        # streamed, not built as one string: with every candidate's operating point a large
+        # board's document is tens of megabytes
+        json.dump(review_json(result), sys.stdout, indent=1, ensure_ascii=False)
+        sys.stdout.write("\n")
     else:
         print(review_table(result), end="")
     return EXIT_FINDINGS if _gate_fails(result, args) else 0

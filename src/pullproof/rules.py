@@ -69,7 +69,12 @@ KEYS: Mapping[str, Key] = MappingProxyType(
         "current_budget": Key("current", None, "no budget unless the design is battery-powered"),
         "bounce": Key("time", None, "only needed when a capacitor debounces a contact"),
         "edge_time": Key("time", None, "the family transition limit applies when unset"),
-        "mains_voltage": Key("voltage", "230VAC", "the most common mains supply; set yours"),
+        "mains_voltage": Key(
+            "voltage",
+            "230VAC",
+            "the most common mains supply; set yours: mains-pattern nets carry it, and resistors "
+            "on them are checked against it",
+        ),
         "mains_patterns": Key(
             "patterns",
             "MAINS,MAINS_L*,MAINS_N*,*_MAINS_L,*_MAINS_N,AC_L*,AC_N*,*_AC_L,*_AC_N,LINE_L,LINE_N,"
@@ -114,8 +119,8 @@ KEYS: Mapping[str, Key] = MappingProxyType(
 )
 _NET_KEYS = frozenset(
     {
-        "match", "margin", "i2c", "bus_capacitance", "bounce", "edge_time", "current_budget",
-        "input", "input_supply",
+        "match", "margin", "i2c", "bus_capacitance", "capacitance", "bounce", "edge_time",
+        "current_budget", "input", "input_supply",
     }
 )  # fmt: skip
 _SECTIONS = frozenset({"resistor", "temperature", "preferred", "i2c"})
@@ -133,6 +138,7 @@ class RailSpec:
     v_max: Sourced | None
     ground: bool = False
     inferred: str = ""  # why a net is a supply by its function ("" when named or listed)
+    ac: bool = False  # an AC rail: the voltages are rms
     follows: str = ""  # the rail it follows ([rails] X = { follows = "VCC" }): one supply
 
 
@@ -146,6 +152,7 @@ class NetRules:
     bounce: Sourced | None
     edge_time: Sourced | None
     current_budget: Sourced | None
+    capacitance: Sourced | None = None  # F, wiring or cable on any net ([[net]] capacitance)
     # an input off this schematic (a connector net): an assumption class or family name, and
     # its supply (a rail name or a voltage such as "3V3"; "" = the pull rail)
     input: str = ""
@@ -171,6 +178,7 @@ class Rules:
     rails: Mapping[str, RailSpec] = field(default_factory=lambda: MappingProxyType({}))
     nets: tuple[tuple[str, Mapping[str, Sourced | str]], ...] = ()
     accepts: tuple[RawEntry, ...] = ()  # [[accept]] entries, read by pullproof.acceptance
+    mains_dc: bool = False  # mains_voltage written with "DC"; mains is AC otherwise
     # resistor ratings given as a table by chip size: {"resistor.power": {"0603": 0.1 W}}
     by_size: Mapping[str, Mapping[str, Sourced]] = field(
         default_factory=lambda: MappingProxyType({})
@@ -236,6 +244,13 @@ class Rules:
         derived = Provenance(Origin.DERIVED, f"{bare} ± {tol.source.where}", tol.source.status)
         return RailSpec(bare, nominal, Sourced(Q_(lo, "V"), derived), Sourced(Q_(hi, "V"), derived))
 
+    def mains(self, net_name: str) -> RailSpec:
+        """The voltage of a mains-pattern net: rules key ``mains_voltage`` (AC unless "DC")."""
+        volts = self.values["mains_voltage"]
+        assert isinstance(volts, Sourced)
+        ac = not self.mains_dc
+        return RailSpec(_bare(net_name), volts, volts, volts, ac=ac)
+
     def is_mains(self, net_name: str) -> bool:
         """True when the net name matches a mains pattern (case-insensitive glob)."""
         name = _bare(net_name).upper()
@@ -251,6 +266,7 @@ class Rules:
             "bounce": self.values["bounce"],
             "edge_time": self.values["edge_time"],
             "current_budget": self.values["current_budget"],
+            "capacitance": None,  # only a [[net]] entry states a net's wiring capacitance
             "input": "",
             "input_supply": "",
         }
@@ -267,6 +283,7 @@ class Rules:
             bounce=merged["bounce"],
             edge_time=merged["edge_time"],
             current_budget=merged["current_budget"],
+            capacitance=merged["capacitance"],
             input=str(merged["input"] or ""),
             input_supply=str(merged["input_supply"] or ""),
         )
@@ -480,7 +497,17 @@ def _build(reader: _Reader | None, doc: Mapping[str, Any]) -> Rules:
             )
     accepts = _raw_entries(reader, flat.get("accept", []), "accept")
     name = reader.path.name if reader else ""
-    return Rules(name, MappingProxyType(values), rails, nets, accepts, MappingProxyType(by_size))
+    mains_text = str(flat.get("mains_voltage", KEYS["mains_voltage"].default))
+    mains_dc = re.search(r"DC\s*$", mains_text, re.I) is not None
+    return Rules(
+        name,
+        MappingProxyType(values),
+        rails,
+        nets,
+        accepts,
+        mains_dc=mains_dc,
+        by_size=MappingProxyType(by_size),
+    )
 
 
 _BY_SIZE = frozenset({"resistor.power", "resistor.working_voltage"})
@@ -560,6 +587,7 @@ def _rails(reader: _Reader | None, table: Any, values: Mapping[str, Any]) -> Map
             follows[name] = other
             continue
         nominal = reader.value(dotted, "voltage", entry.get("nominal", ""))
+        ac = _rail_is_ac(reader, dotted, entry)
         tol = (
             reader.value(f"{dotted}.tolerance", "percent", entry["tolerance"])
             if "tolerance" in entry
@@ -581,7 +609,7 @@ def _rails(reader: _Reader | None, table: Any, values: Mapping[str, Any]) -> Map
             raise reader.error(
                 dotted, f"rules key {dotted!r}: min and max must enclose the nominal voltage"
             )
-        out[name] = RailSpec(name, nominal, v_lo, v_hi, volts == 0)
+        out[name] = RailSpec(name, nominal, v_lo, v_hi, volts == 0, ac=ac)
     for name, other in follows.items():
         # a rail that follows another (a switched, filtered or backed-up copy of it) has its
         # voltage and is judged as the same supply; "" voltages when the other states none
@@ -596,7 +624,16 @@ def _rails(reader: _Reader | None, table: Any, values: Mapping[str, Any]) -> Map
     return MappingProxyType(out)
 
 
-_RAIL_KEYS = ("nominal", "tolerance", "min", "max", "follows")
+_RAIL_KEYS = ("nominal", "tolerance", "min", "max", "ac", "follows")
+
+
+def _rail_is_ac(reader: _Reader, dotted: str, entry: Mapping[str, Any]) -> bool:
+    """A rail is AC when its nominal says so ("230VAC") or the entry has ``ac = true``."""
+    flag = entry.get("ac", False)
+    if not isinstance(flag, bool):
+        raise reader.error(f"{dotted}.ac", f"rules key '{dotted}.ac': write true or false")
+    text = str(entry.get("nominal", ""))
+    return flag or parse_voltage_ac(text, field=dotted)[1]
 
 
 _NET_KINDS = MappingProxyType(
@@ -604,6 +641,7 @@ _NET_KINDS = MappingProxyType(
         "margin": "margin",
         "i2c": "i2c",
         "bus_capacitance": "capacitance",
+        "capacitance": "capacitance",
         "bounce": "time",
         "edge_time": "time",
         "current_budget": "current",
