@@ -17,7 +17,7 @@ from .assume import Assumer, io_supply, stand
 from .circuit import Circuit, Net, Part
 from .elements import Element
 from .errors import ValueParseError
-from .families.loader import InputModel
+from .families.loader import InputModel, load_families
 from .families.match import PartInfo, PartKind, ResistorInfo
 from .hazard import Hazard, hazard_of
 from .network import (
@@ -96,6 +96,17 @@ def enabled_internal_pull(part: Part) -> tuple[tuple[Sourced, Sourced], Directio
                           part=part.ref)  # fmt: skip
     way = Direction.DOWN if (m.group("way") or "up").lower() == "down" else Direction.UP
     return (Sourced(lo, where), Sourced(hi, where)), way
+
+
+def _refix(levels: InputLevels, fix: str) -> InputLevels:
+    """A corner whose assumed values say ``fix`` is where their real ones go."""
+    changes = {}
+    for f in fields(levels):
+        v = getattr(levels, f.name)
+        if isinstance(v, Sourced) and v.source.stands is not None:
+            stands = replace(v.source.stands, fix=fix)
+            changes[f.name] = Sourced(v.value, replace(v.source, stands=stands))
+    return replace(levels, **changes)
 
 
 def _pin_label(pin: PinOnNet) -> str:
@@ -347,6 +358,41 @@ class Resolver:
         hi: float = self.rules.get("temperature.max").magnitude("degC")
         return abs(lo - 25.0) < 1e-9 and abs(hi - 25.0) < 1e-9
 
+    # ------------------------------------------------------------------ inputs off the sheet
+    def offboard_input(self, net: str) -> tuple[InputModel, str] | None:
+        """The input a ``[[net]]`` entry names for the far side of a net (a connector): a
+        family (data) or an input class (assumed; none while assumptions are off)."""
+        word = self.rules.for_net(net).input
+        if not word:
+            return None
+        families = load_families()
+        if word in families:
+            return families[word].model(), word
+        model = self.assumer.input_class(word)
+        return None if model is None else (model, f"{word} (assumed, [[net]] entry)")
+
+    def _offboard(self, site: PullSite, rail: Rail) -> InputOnNet | None:
+        """The far side's input, judged like any input, named after the connector it is
+        reached through (or "off-schematic" when there is none)."""
+        named = self.offboard_input(site.net.name)
+        if named is None:
+            return None
+        model, family = named
+        ref, pin = "off-schematic", ""
+        if site.connectors:
+            ref, pin = site.connectors[0].ref, site.connectors[0].pin
+        supply_name = self.rules.for_net(site.net.name).input_supply
+        supply = self._rail(supply_name) if supply_name else None
+        inp = InputOnNet(
+            ref, pin, family, (),
+            same_supply_as_pull=not rail.ground and (supply is None or supply.same_supply(rail)),
+            schmitt=model.schmitt, name=f"{pin} (far side)" if pin else "far side",
+            supply=supply.name if supply is not None else "",
+        )  # fmt: skip
+        done = self._corners(inp, model, supply, rail)
+        fix = f"the far side's family or numbers in the [[net]] entry for {site.net.name}"
+        return replace(done, corners=tuple(_refix(c, fix) for c in done.corners))
+
     # ------------------------------------------------------------------ switches, drivers
     def _far_rail(self, far_net: str) -> RailSpec | None:
         net = self.nets.get(far_net)
@@ -515,6 +561,8 @@ class Resolver:
         if resistor is None:
             return UnknownRail(site, rail_name, refs)  # no value: nothing can be judged
         inputs = tuple(self._input(p, rail) for p in site.inputs)
+        far = self._offboard(site, rail)
+        inputs = (*inputs, far) if far is not None else inputs
         switches = tuple(self._switch(p, direction) for p in site.switches)
         drivers = tuple(self._driver(p) for p in site.drivers)
         caps = tuple(c for p in site.capacitors if (c := self._capacitor(p, missing)) is not None)

@@ -231,9 +231,13 @@ def _ends_only(n: Neighbours) -> str:
         )
     refs = ", ".join(sorted({p.ref for p in ends}))
     return (
-        f"the net reaches only connector or unclassified pins ({refs}): a shield bleed or an "
-        "input off this schematic; set field 'pullproof.role' = pull to judge it"
+        f"{OFF_SCHEMATIC} ({refs}): a shield bleed or an input off this schematic; set field "
+        "'pullproof.role' = pull, or name the far side's input in a [[net]] entry, to judge it"
     )
+
+
+#: How the reason for a net with only connector pins starts (a [[net]] input lifts it).
+OFF_SCHEMATIC = "the net reaches only connector or unclassified pins"
 
 
 def _unused(n: Neighbours) -> str:

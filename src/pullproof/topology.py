@@ -24,6 +24,7 @@ from .elements import Element, Layout, layout_of, not_fitted
 from .schematic.model import LibPin
 from .setaside import (
     ADC_WORD,
+    OFF_SCHEMATIC,
     Neighbours,
     Pin,
     is_analog_name,
@@ -329,12 +330,15 @@ def find_pulls(
     *,
     library_pins: Mapping[str, tuple[LibPin, ...]] | None = None,
     ohms: Ohms | None = None,
+    offboard: Callable[[str], bool] | None = None,
 ) -> Topology:
     """Find every pulled signal net, set aside rail-tied resistors that are not logic pulls,
     and list switch-driven inputs that have no pull at all.
 
     ``library_pins`` (the symbols' pins, by reference) lets resistor arrays be split into
-    elements; ``ohms`` gives each resistor's nominal value (for the 10 Ω rule).
+    elements; ``ohms`` gives each resistor's nominal value (for the 10 Ω rule);
+    ``offboard`` says which nets have an input off this schematic that the rules name (a
+    pull on such a net that reaches only connector pins is judged, not set aside).
 
     Raises:
         ValueParseError: a field ``pullproof.elements`` cannot be read.
@@ -371,6 +375,8 @@ def find_pulls(
                     f"divider: an up and a down pull, and {', '.join(sorted(set(inferred)))} "
                     "is a supply known only from its pins (a power input or output on it)"
                 )
+        if reason.startswith(OFF_SCHEMATIC) and offboard is not None and offboard(name):
+            reason = ""  # the rules say what input is on the far side
         if reason and not any(forced[el.label] == "pull" for el in kept):
             aside.extend(_aside(el, name, reason) for el in sorted(kept, key=lambda e: e.label))
             continue

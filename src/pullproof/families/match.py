@@ -559,6 +559,21 @@ _INPUT_FIELDS: Mapping[str, tuple[str, Callable[..., Any]]] = MappingProxyType(
         "pullproof.c_in": ("c_in", parse_capacitance),
     }
 )
+#: The name of the input model of a part whose inputs carry only single-number fields.
+FIELDS_ONLY = "part fields"
+# Its family holds no number: every level and current comes from the part's own fields, and
+# its empty supply span (0 V) marks levels that need no supply to be evaluated.
+_FIELDS_ONLY = Family(
+    name=FIELDS_ONLY,
+    title="the part's own fields",
+    standard="fields on the part",
+    file="",
+    status=MappingProxyType({}),
+    note="",
+    supply=(0.0, 0.0),
+    v_in_max=None,
+    origin=Origin.FIELD,
+)
 _YES = frozenset({"yes", "true", "1", "y"})
 _NO = frozenset({"no", "false", "0", "n"})
 _HINT = "add field 'pullproof.family' (e.g. HC) or a part-library entry"
@@ -699,7 +714,8 @@ def _input_model(
                            internal_pull=entry.internal_pull)  # fmt: skip
         return model, entry.name, entry.pins
     if _overrides(part):
-        return None, "", ("*",)  # individual fields only: the engine reads them from overrides
+        # Single-number fields suffice: a model of the fields alone, whatever the part is.
+        return InputModel(_FIELDS_ONLY, schmitt=bool(schmitt)), FIELDS_ONLY, ("*",)
     series = f" ({found.series}: no built-in data)" if found is not None else ""
     missing.append(Missing(f"input data of {part.ref}{series}", part.ref, _HINT))
     return None, "", ("*",)

@@ -41,7 +41,25 @@ def _row(fam: Family) -> dict[str, Any]:
         "five_volt_tolerant": model.five_volt_tolerant,
         "levels": levels,
         "file": fam.file,
+        "assumed": sorted(fam.assumed),
+        "missing": missing_numbers(fam),
     }
+
+
+# The numbers a family should carry; a listing flags those it still lacks.
+_NEEDED = (
+    ("i_high", "I_high"), ("i_low", "I_low"), ("v_in_max", "V_in,max"), ("c_in", "C_in"),
+)  # fmt: skip
+
+
+def missing_numbers(fam: Family) -> list[str]:
+    """The numbers ``fam`` does not carry (by how reports name them)."""
+    out = [name for key, name in _NEEDED if getattr(fam, key) is None]
+    model = fam.model()
+    for key, name in (("vih_min", "V_IH,min"), ("vil_max", "V_IL,max")):
+        if any(getattr(model.at(v), key) is None for v in fam.breakpoints()):
+            out.append(name)
+    return out
 
 
 def families_json() -> dict[str, Any]:
@@ -77,5 +95,12 @@ def families_table() -> str:
                 f"          at {lv['vdd']:g} V: V_IH,min {_fmt(lv['vih_min'], 1, 'V')}, "
                 f"V_IL,max {_fmt(lv['vil_max'], 1, 'V')}, V_in,max {_fmt(lv['v_in_max'], 1, 'V')}"
             )
+        if fam.assumed:
+            lines.append(
+                f"          ASSUMED (not in its standard): {', '.join(sorted(fam.assumed))}: "
+                f"{fam.assumption}"
+            )
+        if row["missing"]:
+            lines.append(f"          MISSING: {', '.join(row['missing'])}")
         lines.append(f"          note: {fam.note}")
     return "\n".join(lines) + "\n"

@@ -31,6 +31,7 @@ from ..hazard import safety_caution
 from ..network import Missing, PullNetwork
 from ..provenance import Sourced
 from ..results import (
+    Basis,
     Bound,
     BoundKind,
     Check,
@@ -116,6 +117,22 @@ class LimitRow:
     explanation: str
     corner: str
     missing: tuple[Missing, ...]
+    assumed: tuple[str, ...] = ()  # the assumed values the row rests on (an input's, a rail's)
+
+
+@dataclass(frozen=True)
+class AssumedRow:
+    """One line of the "Assumed values to confirm" table: an assumed number and the
+    networks whose verdicts rest on it."""
+
+    part: str
+    pin: str
+    quantity: str
+    value: str
+    basis: str
+    fix: str
+    status: str
+    networks: tuple[tuple[str, str], ...]  # (anchor, net)
 
 
 @dataclass(frozen=True)
@@ -334,7 +351,7 @@ def _rows(nr: NetworkResult, reg: _Registry) -> tuple[LimitRow, ...]:
             outcome = f"{side} = {format_ohms(end)}"
         sides = [w for w in nr.window if w is not None]
         binding = (
-            b.hard
+            (b.hard or bool(b.assumed))
             and b.ohms is not None
             and b.constraint in nr.binding
             and any(abs(b.ohms - w) <= 1e-9 * max(abs(w), 1.0) for w in sides)
@@ -355,6 +372,7 @@ def _rows(nr: NetworkResult, reg: _Registry) -> tuple[LimitRow, ...]:
                 b.explanation,
                 b.corner,
                 b.missing,
+                b.assumed,
             )
         )
     for c in nr.checks:
@@ -380,6 +398,7 @@ def _rows(nr: NetworkResult, reg: _Registry) -> tuple[LimitRow, ...]:
                 c.explanation,
                 "",
                 c.missing,
+                c.assumed,
             )
         )
     return tuple(out)
@@ -504,7 +523,8 @@ def note_context(
 ) -> dict[str, Any]:
     """The template variables for ``result`` (also used by tests of custom templates)."""
     taken: set[str] = {
-        "summary", "findings", "cautions", "method", "files", "skipped", "changes", "warnings"
+        "summary", "findings", "cautions", "method", "files", "skipped", "changes", "warnings",
+        "assumptions",
     }  # fmt: skip
     order = sorted(result.networks, key=lambda n: (-n.verdict.rank, n.network.net))
     views = [_network_view(nr, _slug(nr.network.net, "net", taken)) for nr in order]
@@ -537,7 +557,36 @@ def note_context(
         "gate": result.gate,
         "accepted_count": sum(1 for m in marks if m is not None and m.holds),
         "changes": _changes_view(result, by_net),
+        "assumptions": _assumed_rows(views),
+        "assumed_count": sum(1 for n in result.networks if n.basis is Basis.ASSUMED),
+        "assume": result.assume,
     }
+
+
+def _assumed_rows(views: list[NetworkView]) -> list[AssumedRow]:
+    """Every assumed number of the review once, with the networks resting on it."""
+    rows: dict[tuple[str, str, str, str], tuple[Any, list[tuple[str, str]]]] = {}
+    for v in views:
+        for a in v.result.assumptions:
+            entry = rows.setdefault(a.key, (a, []))
+            pair = (v.anchor, v.result.network.net)
+            if pair not in entry[1]:
+                entry[1].append(pair)
+    out = [
+        AssumedRow(
+            a.part,
+            a.pin,
+            a.quantity,
+            a.text or format_sourced(a.value),
+            a.basis,
+            a.fix,
+            a.value.source.status.value,
+            tuple(nets),
+        )  # fmt: skip
+        for a, nets in rows.values()
+    ]
+    # the parts' numbers first (the datasheets to open), then rails, then the defaults
+    return sorted(out, key=lambda r: (r.basis == "default", not r.part, r.part, r.pin, r.quantity))
 
 
 def _rules_digest(path: str | None) -> FileDigest | None:

@@ -21,7 +21,7 @@ from typing import Any
 from .. import __version__
 from ..circuit import Circuit
 from ..errors import SourceText
-from ..results import AcceptanceMark, Finding, NetworkResult, ReviewResult, Verdict
+from ..results import AcceptanceMark, Assumption, Finding, NetworkResult, ReviewResult, Verdict
 from .console import finding_line, network_line
 
 __all__ = ["SARIF_SCHEMA", "SARIF_VERSION", "sarif_log"]
@@ -112,6 +112,7 @@ def _result(
     location: dict[str, Any] | None,
     fingerprint: str,
     mark: AcceptanceMark | None,
+    assumed: tuple[str, ...] = (),
 ) -> dict[str, Any]:
     out: dict[str, Any] = {
         "ruleId": rule,
@@ -124,8 +125,12 @@ def _result(
     suppressions = _suppressions(mark)
     if suppressions is not None:
         out["suppressions"] = suppressions
+    properties: dict[str, Any] = {"basis": "assumed" if assumed else "data"}
+    if assumed:  # what the result rests on that nothing in the design states
+        properties["assumptions"] = list(assumed)
     if mark is not None and not mark.holds:
-        out["properties"] = {"acceptanceLapsed": mark.lapsed}
+        properties["acceptanceLapsed"] = mark.lapsed
+    out["properties"] = properties
     return out
 
 
@@ -138,7 +143,14 @@ def _network(r: NetworkResult, where: _Locator) -> dict[str, Any]:
         where.location(tuple(e.ref for e in n.resistor.members)),  # the part, for arrays too
         f"{','.join(n.resistor.refs)}|{n.net}",
         r.accepted,
+        tuple(_assumption_text(a) for a in r.assumptions),
     )
+
+
+def _assumption_text(a: Assumption) -> str:
+    """One assumed value in words: "U1 pin 7 (GPIO5) I_high = 10uA (cmos)"."""
+    where = f"{a.part} pin {a.pin} " if a.part and a.pin else f"{a.part} " if a.part else ""
+    return f"{where}{a.quantity} = {a.text} ({a.basis})"
 
 
 def _finding(f: Finding, where: _Locator) -> dict[str, Any]:
@@ -149,6 +161,7 @@ def _finding(f: Finding, where: _Locator) -> dict[str, Any]:
         where.location(f.refs),
         f"{f.kind}|{f.net}|{','.join(sorted(f.refs))}",
         f.accepted,
+        f.assumed,
     )
 
 
