@@ -31,6 +31,7 @@ from ..hazard import safety_caution
 from ..network import Missing, PullNetwork
 from ..provenance import Sourced
 from ..results import (
+    Assumption,
     Basis,
     Bound,
     BoundKind,
@@ -563,28 +564,22 @@ def note_context(
     }
 
 
+def _assumed_row(a: Assumption, nets: list[tuple[str, str]]) -> AssumedRow:
+    text = a.text or format_sourced(a.value)
+    status = a.value.source.status.value
+    return AssumedRow(a.part, a.pin, a.quantity, text, a.basis, a.fix, status, tuple(nets))
+
+
 def _assumed_rows(views: list[NetworkView]) -> list[AssumedRow]:
     """Every assumed number of the review once, with the networks resting on it."""
-    rows: dict[tuple[str, str, str, str], tuple[Any, list[tuple[str, str]]]] = {}
+    rows: dict[tuple[str, str, str, str], tuple[Assumption, list[tuple[str, str]]]] = {}
     for v in views:
         for a in v.result.assumptions:
             entry = rows.setdefault(a.key, (a, []))
             pair = (v.anchor, v.result.network.net)
             if pair not in entry[1]:
                 entry[1].append(pair)
-    out = [
-        AssumedRow(
-            a.part,
-            a.pin,
-            a.quantity,
-            a.text or format_sourced(a.value),
-            a.basis,
-            a.fix,
-            a.value.source.status.value,
-            tuple(nets),
-        )  # fmt: skip
-        for a, nets in rows.values()
-    ]
+    out = [_assumed_row(a, nets) for a, nets in rows.values()]
     # the parts' numbers first (the datasheets to open), then rails, then the defaults
     return sorted(out, key=lambda r: (r.basis == "default", not r.part, r.part, r.pin, r.quantity))
 
