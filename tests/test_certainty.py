@@ -60,8 +60,9 @@ def test_an_assumed_wetting_current_is_a_soft_limit(tmp_path: Path) -> None:
     verdict, reason = _start(result)
     assert verdict is Verdict.MARGINAL
     assert reason.endswith(
-        "above the 47.5 kΩ at which SW1 still gets its 100 µA wetting current; that limit rests "
-        "on assumed switch wetting."
+        "above the 47.5 kΩ at which SW1 still gets its 100 µA wetting current; that would "
+        "fail, but the limit rests on assumed switch wetting, which nothing states: confirm it "
+        "(an assumption never makes a fail)."
     )
     (start,) = [n for n in result.networks if n.network.net == "/START"]
     wet = next(b for b in start.bounds if b.constraint == "wetting-current")

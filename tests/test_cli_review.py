@@ -18,8 +18,9 @@ MCU_PARTS = str(REPO / "fixtures" / "parts" / "generic_mcu33.toml")
 BASE = ["review", PANEL, "--parts", MCU_PARTS]
 
 
-# (extra arguments, exit code): R23 is the only marginal network, R10 an incomplete one,
-# the whole panel has failures.
+# (extra arguments, exit code): R23 is the only marginal network; R10 pulls an input of a
+# part without data, a pass resting on the cmos class (incomplete with --strict); the whole
+# panel has failures. R1 and R3 pass, resting on the assumed default switch ratings.
 EXITS = [
     ([], 1),
     (["--fail-on", "fail"], 1),
@@ -27,10 +28,15 @@ EXITS = [
     (["--ref", "R23", "--fail-on", "incomplete"], 0),
     (["--ref", "R23", "--fail-on", "marginal"], 1),
     (["--ref", "R10"], 0),
-    (["--ref", "R10", "--fail-on", "incomplete"], 1),
-    (["--ref", "R10", "--fail-on", "marginal"], 1),
+    (["--ref", "R10", "--fail-on", "incomplete"], 0),  # an assumed pass counts as a pass
+    (["--ref", "R10", "--fail-on", "marginal"], 0),
+    (["--ref", "R10", "--strict"], 0),
+    (["--ref", "R10", "--strict", "--fail-on", "incomplete"], 1),
+    (["--ref", "R10", "--require-data"], 1),  # it rests on an assumption
+    (["--ref", "R10", "--strict", "--require-data"], 0),  # incomplete rests on nothing assumed
     (["--ref", "R1,R3"], 0),  # two passing networks
     (["--ref", "R1,R3", "--fail-on", "marginal"], 0),
+    (["--ref", "R1,R3", "--require-data"], 1),
 ]
 
 
@@ -130,6 +136,6 @@ def test_broken_schematic(tmp_path: Path, capsys: pytest.CaptureFixture[str]) ->
 def test_json_on_stdout(capsys: pytest.CaptureFixture[str]) -> None:
     assert main([*BASE, "--json"]) == 1
     doc = json.loads(capsys.readouterr().out)
-    assert doc["schema"] == "pullproof.review/1"
+    assert doc["schema"] == "pullproof.review/2"
     assert doc["worst"] == "fail"
     assert len(doc["networks"]) == 15

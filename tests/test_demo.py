@@ -20,7 +20,7 @@ from notecheck import check_note_html
 from pullproof.demo import DEMO_ROOT, demo_files, write_demo
 from pullproof.errors import EXIT_INPUT
 from pullproof.report.note import render_note
-from pullproof.results import OperatingPoint, ReviewResult, Verdict
+from pullproof.results import Basis, OperatingPoint, ReviewResult, Verdict
 from pullproof.review import review
 
 REPO = Path(__file__).resolve().parents[1]
@@ -151,8 +151,14 @@ EXPECTED = {
     "/FLOAT_TANK": Verdict.FAIL,
     # Pulled up to +5V into a 3.3 V-only pin (input tolerance VDD + 0.3 V, example data).
     "/FLOW_PULSE": Verdict.FAIL,
-    # Open-drain alarm output with no sink or leakage data: cannot be judged yet.
-    "/ALERT": Verdict.INCOMPLETE,
+    # Open-drain alarm output with no sink or leakage data: judged with the open-drain class
+    # (V_OL 0.4 V at I_OL 2 mA, JESD8C.01 LVTTL output, from memory; 10 µA off-state, the
+    # UM10204 I/O limit, confirmed (secondary)): R ≥ (3.399 − 0.4) V / 2 mA, a pass resting on
+    # those assumed numbers (incomplete with --strict).
+    "/ALERT": Verdict.PASS,
+    # Soil probe's dry output on a connector: nothing on this schematic reads it, and no
+    # [[net]] entry says what does, so it cannot be judged.
+    "/sensors/SOIL_DRY": Verdict.INCOMPLETE,
     # Two 74LS inputs tied together each source IIL = 0.4 mA (handbook 74LS table,
     # confirmed): R ≤ (0.8 V − 0.1 V) / 0.8 mA = 875 Ω; 680 Ω meets every hard limit but sits
     # below the preferred 1 kΩ (soft), so the designer is asked to look again.
@@ -176,6 +182,30 @@ def test_demo_verdict_per_net(demo_result: ReviewResult) -> None:
     assert got == EXPECTED
 
 
+def test_demo_basis_per_net(demo_result: ReviewResult) -> None:
+    # The demo rules state the resistors' tolerance, TCR and ratings by size, and the part
+    # library the parts' data: only the alarm output rests on assumed values.
+    assumed = {nr.network.net for nr in demo_result.networks if nr.basis is Basis.ASSUMED}
+    assert assumed == {"/ALERT"}
+    alert = next(nr for nr in demo_result.networks if nr.network.net == "/ALERT")
+    got = {(a.part, a.quantity, a.text, a.basis) for a in alert.assumptions}
+    assert got == {
+        ("U30", "I_OL", "2mA", "open-drain"),
+        ("U30", "V_OL", "0.4V", "open-drain"),
+        ("U30", "I_off", "10uA", "open-drain"),
+    }
+    # the sink limit: (3.3 V × 1.03 − 0.4 V) / 2 mA (Ohm's law with the class's numbers)
+    sink = next(b for b in alert.bounds if b.constraint == "driver-sink")
+    assert sink.assumed and not sink.hard
+    assert alert.window[0] == pytest.approx((3.3 * 1.03 - 0.4) / 2e-3, rel=1e-3)
+
+
+def test_demo_strict_leaves_the_alarm_incomplete(demo_dir: Path) -> None:
+    strict = review(demo_dir / DEMO_ROOT, assume="none")
+    got = {nr.network.net: nr.verdict for nr in strict.networks}
+    assert got == {**EXPECTED, "/ALERT": Verdict.INCOMPLETE}
+
+
 def test_demo_has_every_verdict(demo_result: ReviewResult) -> None:
     assert {nr.verdict for nr in demo_result.networks} == set(Verdict)
     assert 10 <= len(demo_result.networks) <= 14
@@ -193,6 +223,7 @@ def test_demo_findings(demo_result: ReviewResult) -> None:
     assert found == {
         ("rail-above-input-tolerance", "/FLOW_PULSE", Verdict.FAIL),
         ("floating-input", "/inputs/RAIN_SW", Verdict.FAIL),  # a 74HC14 input, not an MCU pin
+        ("pull-without-input", "/sensors/SOIL_DRY", Verdict.INCOMPLETE),
     }
     skipped = {(s.ref, s.reason.split(":")[0]) for s in demo_result.skipped}
     assert ("R1", "LED series resistor") in skipped
@@ -207,8 +238,9 @@ def window(result: ReviewResult, net: str) -> tuple[float | None, float | None]:
     [
         # 74LS IIL 0.4 mA per input, VIL 0.8 V (handbook 74LS table, confirmed), two inputs.
         ("/inputs/LID_SW", 1, (0.8 - 0.1) / (2 * 0.4e-3)),
-        # contact rating: 5.25 V / 100 mA, the interlock's stated rating (Ohm's law)
-        ("/inputs/LID_SW", 0, 5.25 / 0.1),
+        # Joule heating: 5.25 V² / (0.1 W × 50 % derating), the 0603 rating the demo rules
+        # state (derating common practice); it binds above the contact rating's 52.5 Ω
+        ("/inputs/LID_SW", 0, 5.25**2 / (0.1 * 0.5)),
         # wetting current: V_min / I_wet = 3.3 V × 0.97 / 1 mA (common practice)
         ("/FLOAT_TANK", 1, 3.3 * 0.97 / 1e-3),
         # UM10204 §7.1 eq. (2): (VDD − VOL) / 3 mA with VOL = 0.4 V (confirmed)
@@ -320,11 +352,28 @@ def test_markup_in_schematic_text_is_escaped(tmp_path: Path) -> None:
     assert check_note_html(html, result) == []
 
 
-def test_a_rating_read_from_the_size_is_an_assumed_soft_limit(demo_result: ReviewResult) -> None:
-    # 5.25 V² / (0.1 W × 50 %): the 0603 size's generic rating (common practice) stands in
-    # for the fitted resistor's, so the limit is soft and says so
+def test_a_rating_the_rules_state_by_size_is_a_hard_limit(
+    demo_result: ReviewResult, tmp_path: Path
+) -> None:
+    # 5.25 V² / (0.1 W × 50 %): the demo rules state the 0603 rating, so the limit is hard
     lid = next(nr for nr in demo_result.networks if nr.network.net == "/inputs/LID_SW")
     power = next(b for b in lid.bounds if b.constraint == "resistor-power")
     assert power.ohms == pytest.approx(5.25**2 / 0.05, rel=1e-3)
+    assert power.hard and not power.assumed
+    rating = next(t.value for t in power.terms if t.symbol == "P_rated")
+    assert rating.source.where.startswith("rules key resistor.power")
+    # contact rating: 5.25 V / 100 mA, the interlock's stated rating (Ohm's law)
+    contact = next(b for b in lid.bounds if b.constraint == "contact-rating")
+    assert contact.ohms == pytest.approx(5.25 / 0.1, rel=1e-9)
+    # without the rules' table the 0603 size's generic rating (common practice) stands in:
+    # the same limit, soft and titled assumed
+    root = Path(demo_result.files[0][1]).parent / DEMO_ROOT
+    text = (root.parent / "pullproof.toml").read_text(encoding="utf-8")
+    bare = text.split("[resistor]")[0] + "[temperature]" + text.split("[temperature]")[1]
+    other = tmp_path / "pullproof-bare.toml"
+    other.write_text(bare, encoding="utf-8")
+    result = review(root, rules=other)
+    lid = next(nr for nr in result.networks if nr.network.net == "/inputs/LID_SW")
+    power = next(b for b in lid.bounds if b.constraint == "resistor-power")
     assert not power.hard and power.title.endswith("(assumed)")
     assert power.assumed == ("assumed rating of size 0603",)

@@ -24,10 +24,11 @@ Resolved = dict[str, PullNetwork | UnknownRail]
 PANEL = Path(__file__).resolve().parents[1] / "fixtures" / "review" / "interlock_panel.kicad_sch"
 
 
-def scan(root: Path) -> tuple[Resolver, Topology]:
+def scan(root: Path, assume: str | None = None) -> tuple[Resolver, Topology]:
     """The resolver and the topology of one schematic, with no part library."""
     circuit = build_circuit(root)
     rules = load_rules(root)
+    rules = rules if assume is None else rules.with_assume(assume)
     infos = {p.ref: resolve_part(p, PartLibrary(), rules) for p in circuit.parts}
     resolver = Resolver(circuit, infos, rules)
     return resolver, find_pulls(circuit, lambda p: _kind_word(infos[p.ref]), resolver.rail_key)
@@ -87,10 +88,31 @@ def test_switch_pulls_against_the_pull(resolved: Resolved) -> None:
     assert network(resolved, "/STOP_BTN").opposite_rail is not None
 
 
-def test_unknown_input_is_missing_data(resolved: Resolved) -> None:
-    (inp,) = network(resolved, "/LAMP_EN").inputs
+def test_unknown_input_is_missing_data_when_nothing_is_assumed() -> None:
+    resolver, topo = scan(PANEL, assume="none")
+    (site,) = [s for s in topo.sites if s.net.name == "/LAMP_EN"]
+    n = resolver.resolve(site, Direction.UP if site.ups else Direction.DOWN, site.ups or site.downs)
+    assert isinstance(n, PullNetwork)
+    (inp,) = n.inputs
     assert inp.corners == ()
     assert [m.what for m in inp.missing] == ["input data of U7"]
+
+
+def test_unknown_input_is_judged_with_the_input_class(resolved: Resolved) -> None:
+    # By default a part without data is judged as a CMOS input at its own supply: 0.7·VDD
+    # and 0.3·VDD (UM10204 §3.1.2 and JESD7A 74HC ratios, from memory), 10 µA either way
+    # (the UM10204 I/O limit, confirmed (secondary)), each value an assumption.
+    (inp,) = network(resolved, "/LAMP_EN").inputs
+    assert inp.family == "cmos (assumed)" and inp.missing == ()
+    for c in inp.corners:
+        vdd = c.vdd.magnitude("V")
+        assert c.vih_min is not None and c.vih_min.magnitude("V") == pytest.approx(0.7 * vdd)
+        assert c.vil_max is not None and c.vil_max.magnitude("V") == pytest.approx(0.3 * vdd)
+        assert c.i_high is not None and c.i_high.magnitude("A") == pytest.approx(10e-6)
+        stands = c.i_high.source.stands
+        assert stands is not None and (stands.part, stands.quantity, stands.basis) == (
+            "U7", "I_high", "cmos"
+        )
 
 
 def test_power_symbol_without_voltage_is_an_unknown_rail(tmp_path: Path) -> None:

@@ -63,8 +63,11 @@ VERDICTS = {
     "/I2C_SCL": ("fail", "2k2 above the rise-time limit"),
     # A 5 V pull-up on a pin that tolerates VDD + 0.3 V = 3.6 V (example part data).
     "/TOOL_PROBE": ("fail", "input tolerance"),
-    # An input of a part nobody described: no family, no part-library entry.
-    "/LAMP_EN": ("incomplete", "unknown family"),
+    # An input of a part nobody described: no family, no part-library entry. It is judged
+    # with the cmos class at its +3V3 supply: (3.3 − 0.7·3.3 − 0.1) V / 10 µA = 89 kΩ
+    # (UM10204 §3.1.2 ratio from memory; the UM10204 10 µA I/O limit, confirmed (secondary)),
+    # a pass resting on those assumed numbers (incomplete with --strict).
+    "/LAMP_EN": ("pass", "unknown family, judged with the cmos class"),
     # A pull on a net that reaches only a switch, or only a connector (forced by role=pull).
     "/SPARE_KEY": ("incomplete", "no logic input"),
     "/REMOTE_IN": ("incomplete", "no logic input"),
@@ -81,6 +84,25 @@ def test_every_network_has_its_verdict() -> None:
     got = {r.network.net: r.verdict.value for r in panel().networks}
     assert got == {k: v for k, (v, _) in VERDICTS.items()}
     assert len(got) >= 12
+
+
+def test_strict_assumes_nothing() -> None:
+    strict = review(PANEL, parts=[MCU_PARTS], assume="none")
+    got = {r.network.net: r.verdict.value for r in strict.networks}
+    assert got == {**{k: v for k, (v, _) in VERDICTS.items()}, "/LAMP_EN": "incomplete"}
+    lamp = next(r for r in strict.networks if r.network.net == "/LAMP_EN")
+    assert lamp.basis.value == "data" and lamp.assumptions == ()
+
+
+def test_the_class_judges_the_unknown_input_as_an_assumption() -> None:
+    lamp = next(r for r in panel().networks if r.network.net == "/LAMP_EN")
+    assert lamp.basis.value == "assumed"
+    high = next(b for b in lamp.bounds if b.constraint == "high-level-holds")
+    assert high.ohms == pytest.approx((3.3 - 0.7 * 3.3 - 0.1) / 10e-6, rel=1e-9)
+    assert not high.hard and high.assumed
+    got = {(a.part, a.quantity, a.text, a.basis) for a in lamp.assumptions if a.part == "U7"}
+    assert ("U7", "I_high", "10uA", "cmos") in got
+    assert ("U7", "V_IH,min", "0.7 VDD", "cmos") in got
 
 
 # (net, constraint, kind, ohms): end-to-end bounds through the schematic
@@ -208,9 +230,10 @@ def _is_num_or_null(x: object) -> bool:
 
 
 def test_json_contract_keys_and_types() -> None:
-    # DESIGN.md "Contract: pullproof review ROOT --json" (pullproof.review/1)
+    # DESIGN.md "Contract: pullproof review ROOT --json" (pullproof.review/2: with basis)
     doc = json.loads(json.dumps(review_json(panel()), ensure_ascii=False))
-    assert doc["schema"] == SCHEMA == "pullproof.review/1"
+    assert doc["schema"] == SCHEMA == "pullproof.review/2"
+    assert doc["assume"] == "cmos" and isinstance(doc["assumed"], int)
     assert isinstance(doc["root"], str) and doc["root"].endswith("interlock_panel.kicad_sch")
     for n in doc["networks"]:
         assert isinstance(n["net"], str)
@@ -225,6 +248,14 @@ def test_json_contract_keys_and_types() -> None:
         assert isinstance(n["window_ohms"], list) and len(n["window_ohms"]) == 2
         assert all(_is_num_or_null(x) for x in n["window_ohms"])
         assert n["verdict"] in {"pass", "marginal", "fail", "incomplete"}
+        assert n["basis"] in {"data", "assumed"}
+        assert (n["basis"] == "assumed") is bool(n["assumptions"])
+        for a in n["assumptions"]:
+            assert {k: type(v) for k, v in a.items()} == {
+                "part": str, "pin": str, "quantity": str, "value": float, "unit": str,
+                "text": str, "class": str, "fix": str, "source": dict,
+            }  # fmt: skip
+            assert a["source"]["origin"] == "assumed"
         assert _is_num_or_null(n["recommended_ohms"])
         for b in n["bounds"]:
             assert isinstance(b["constraint"], str)
@@ -234,6 +265,7 @@ def test_json_contract_keys_and_types() -> None:
     for f in doc["findings"]:
         assert isinstance(f["kind"], str) and isinstance(f["message"], str)
         assert f["severity"] in {"pass", "marginal", "fail", "incomplete"}
+        assert f["basis"] in {"data", "assumed"} and isinstance(f["assumed"], list)
         assert isinstance(f["net"], str) and all(isinstance(r, str) for r in f["refs"])
     for s in doc["skipped"]:
         assert {k: type(v) for k, v in s.items()} == {
@@ -254,8 +286,11 @@ def test_console_lists_every_network() -> None:
     for name, (verdict, _) in VERDICTS.items():
         line = next(ln for ln in text.splitlines() if ln.startswith(name + " "))
         assert verdict.upper() in line, line
+    assert "PASS (assumed)" in next(ln for ln in text.splitlines() if ln.startswith("/LAMP_EN"))
     assert text.rstrip().endswith(
-        "15 networks (fail 5, incomplete 3, marginal 1, pass 6); 6 findings"
+        "15 networks (fail 5, incomplete 2, marginal 1, pass 7); 6 findings; 8 rest on assumed "
+        "values ('pullproof parts "
+        f"{panel().root}' lists the numbers to confirm)"
     )
 
 

@@ -107,11 +107,18 @@ def test_a_net_that_powers_a_part_is_a_supply(tmp_path: Path) -> None:
 
 
 def test_pull_to_a_supply_of_unknown_voltage(tmp_path: Path) -> None:
-    result = review(_lid(tmp_path))
+    result = review(_lid(tmp_path), assume="none")
     by_net = {n.network.net: n for n in result.networks}
     # R1 pulls the alert line up to the regulator's output: a rail whose voltage is unknown
     alert = by_net["/TEMP_ALERT"]
     assert alert.network.rail.name == "LID_SUPPLY"
     assert "the voltage of rail LID_SUPPLY is unknown" in alert.reason
+    # With assumptions on, the parts it powers have no data either: they are judged with the
+    # input class, and the rail over that class's supply range, 1.1–5.5 V (an assumption)
+    assumed = {n.network.net: n for n in review(_lid(tmp_path)).networks}["/TEMP_ALERT"]
+    rail = assumed.network.rail
+    assert (rail.v_min.magnitude("V"), rail.v_max.magnitude("V")) == (1.1, 5.5)
+    assert rail.v_min.source.stands is not None
+    assert rail.v_min.source.stands.basis == "rail range (input class)"
     # R2 pulls the enable line, a signal whose name merely carries a voltage
     assert by_net["/PUMP_EN_3V3"].network.rail.name == "+5V"

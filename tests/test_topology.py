@@ -182,7 +182,8 @@ SET_ASIDE: list[tuple[str, Callable[[Bench], Bench], dict[str, str]]] = [
             {"1": "EXT"},
         ),
         {"R1": "the net reaches only connector or unclassified pins (J1): a shield bleed or an "
-               "input off this schematic; set field 'pullproof.role' = pull to judge it"},
+               "input off this schematic; set field 'pullproof.role' = pull, or name the far "
+               "side's input in a [[net]] entry, to judge it"},
     ),
     (
         "divider into an ADC-capable GPIO",

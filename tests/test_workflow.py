@@ -63,7 +63,7 @@ def test_accepted_marginal_and_finding_do_not_fail_the_gate(
     root = _panel(tmp_path / "b", "B", ACCEPT_HATCH, r8_fields=ACCEPT_R8)
     code, out, err = _run(capsys, "review", str(root), "--fail-on", "marginal")
     assert (code, err) == (0, "")
-    assert "MARGINAL (accepted)" in out
+    assert "MARGINAL (assumed, accepted)" in out  # R8 and SW8 state no ratings: assumed defaults
     assert "FAIL (accepted)" in out  # the floating-input finding
     assert "the hatch input is read only while firmware enables the pin's pull" in out
     assert "(B. Reviewer, 2031-05-04;" in out
@@ -105,7 +105,7 @@ def test_changing_the_accepted_value_makes_the_acceptance_lapse(
     root = _panel(tmp_path / "b", "B", ACCEPT_HATCH, r8_value="750", r8_fields=ACCEPT_R8)
     code, out, _ = _run(capsys, "review", str(root), "--fail-on", "marginal")
     assert code == 1
-    assert "MARGINAL (acceptance lapsed)" in out
+    assert "MARGINAL (assumed, acceptance lapsed)" in out
     assert (
         "warning: acceptance lapsed (field 'pullproof.accept' of R8, R8 on /DOOR): "
         "accepted at 820R 5%, R8 is now 750R 5%"

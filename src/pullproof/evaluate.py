@@ -80,7 +80,14 @@ def evaluate(
     operating, points = analyse(network, rec.candidates if rec else ())
     if rec is not None:
         rec = replace(rec, points=points)
-    assumptions = assumptions_of((*bounds, *checks), network.resistor, network.assumed)
+    # A fail rests on a hard limit or check (no assumed value is in one) and the fitted value:
+    # on data; an incomplete verdict concludes nothing. A pass or marginal rests on every
+    # limit and check it was judged by.
+    assumptions = (
+        ()
+        if verdict in (Verdict.FAIL, Verdict.INCOMPLETE)
+        else assumptions_of((*bounds, *checks), network.resistor, network.assumed)
+    )
     return NetworkResult(
         network=network,
         bounds=bounds,

@@ -14,6 +14,7 @@ import re
 from collections.abc import Iterable, Mapping
 from dataclasses import dataclass, field
 
+from .assumed import assumptions_of
 from .circuit import Circuit, Part
 from .families.classes import INPUT_KEYS, load_classes
 from .families.match import RATING_QUANTITY, PartKind, PartLibrary, classify
@@ -191,7 +192,10 @@ class _Collector:
     def network(self, r: NetworkResult) -> None:
         n = r.network
         label = f"{'/'.join(n.resistor.refs)} on {n.net}"
-        for a in r.assumptions:
+        # an incomplete or failing verdict rests on no assumption, but its other limits use
+        # assumed values all the same: they are numbers to collect too
+        used = r.assumptions or assumptions_of((*r.bounds, *r.checks), n.resistor, n.assumed)
+        for a in used:
             self.assumption(a, label)
         for m in r.missing:
             self.missing(m, n.net, label)
@@ -199,9 +203,7 @@ class _Collector:
             p = self.part(inp.ref)
             if p is None:
                 continue  # an input off this schematic ([[net]] entry)
-            if any(a.part == inp.ref for a in r.assumptions) or any(
-                m.ref == inp.ref for m in r.missing
-            ):
+            if any(a.part == inp.ref for a in used) or any(m.ref == inp.ref for m in r.missing):
                 p.pins.setdefault(inp.name or inp.pin, n.net)
                 if inp.supply and inp.supply not in p.supplies:
                     p.supplies.append(inp.supply)
@@ -209,7 +211,7 @@ class _Collector:
                     p.family = inp.family
         for d in n.drivers:
             p = self.part(d.ref)
-            if p is not None and any(a.part == d.ref for a in r.assumptions):
+            if p is not None and any(a.part == d.ref for a in used):
                 part = self.circuit.part(d.ref)
                 pin = part.pin(d.pin) if part is not None else None
                 p.pins.setdefault(pin.name if pin is not None and pin.name else d.pin, n.net)

@@ -120,16 +120,27 @@ def test_cli_reviews_without_traceback(project: str, capsys: pytest.CaptureFixtu
     assert code in (0, 1), captured.err
     assert captured.err == ""
     doc = json.loads(captured.out)
-    assert doc["schema"] == "pullproof.review/1"
+    assert doc["schema"] == "pullproof.review/2"
     assert main(["review", str(SHARED / ROOTS[project])]) == code
     assert "Traceback" not in capsys.readouterr().err
 
 
 def test_buttonbar_needs_its_rail(tmp_path: Path) -> None:
-    # /Vcc states no voltage: incomplete until the rules say what it is
+    # /Vcc states no voltage: with --strict incomplete until the rules say what it is
+    strict = review(SHARED / ROOTS["bablokb-buttonbar"], assume="none")
+    assert {n.verdict for n in strict.networks} == {Verdict.INCOMPLETE}
+    assert all("rail Vcc is unknown" in n.reason for n in strict.networks)
+    # By default it is judged, as an assumption, over the supply range of the only parts it
+    # powers with data: 74HC 2–6 V (JEDEC JESD7A, from memory), at both ends.
     plain = reviewed("bablokb-buttonbar")
-    assert {n.verdict for n in plain.networks} == {Verdict.INCOMPLETE}
-    assert all("rail Vcc is unknown" in n.reason for n in plain.networks)
+    assert {n.verdict for n in plain.networks} == {Verdict.PASS}
+    for n in plain.networks:
+        assert (n.network.rail.v_min.magnitude("V"), n.network.rail.v_max.magnitude("V")) == (
+            pytest.approx(2.0),
+            pytest.approx(6.0),
+        )
+        rail = [a for a in n.assumptions if a.quantity == "voltage of rail Vcc"]
+        assert rail and rail[0].basis == "rail range" and rail[0].text == "2–6 V"
     rules = tmp_path / "pullproof.toml"
     rules.write_text('[rails]\nVcc = "3V3"\n', encoding="utf-8")
     described = review(SHARED / ROOTS["bablokb-buttonbar"], rules=rules)
