@@ -111,7 +111,9 @@ def test_unknown_input_is_judged_with_the_input_class(resolved: Resolved) -> Non
         assert c.i_high is not None and c.i_high.magnitude("A") == pytest.approx(10e-6)
         stands = c.i_high.source.stands
         assert stands is not None and (stands.part, stands.quantity, stands.basis) == (
-            "U7", "I_high", "cmos"
+            "U7",
+            "I_high",
+            "cmos",
         )
 
 

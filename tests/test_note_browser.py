@@ -121,3 +121,69 @@ def test_demo_note_prints_one_page_or_more_per_network(tmp_path: Path) -> None:
     png = tmp_path / "demo.png"
     chromium(tmp_path, f"--screenshot={png}", "--window-size=1000,1400", demo.note.as_uri())
     assert png.read_bytes().startswith(b"\x89PNG\r\n\x1a\n")
+
+
+def test_assumed_values_table_lists_every_assumption(tmp_path: Path) -> None:
+    # The demo's alarm output states no sink data: its verdict rests on the open-drain class
+    # (V_OL 0.4 V at I_OL 2 mA, JESD8C.01 from memory; 10 µA off, UM10204 I/O limit).
+    from html.parser import HTMLParser
+
+    from pullproof.demo import write_demo
+
+    demo = write_demo(tmp_path / "demo")
+    dom = chromium(tmp_path, "--dump-dom", demo.note.as_uri()).stdout.decode()
+
+    class Rows(HTMLParser):
+        """The cells of every row of the assumed-values table, as the browser laid it out."""
+
+        def __init__(self) -> None:
+            super().__init__()
+            self.rows: list[list[str]] = []
+            self.inside = False
+            self.cell: list[str] | None = None
+
+        def handle_starttag(self, tag: str, attrs: list[tuple[str, str | None]]) -> None:
+            if tag == "table" and ("class", "assumptions") in attrs:
+                self.inside = True
+            elif self.inside and tag == "tr" and ("class", "assumed-value") in attrs:
+                self.rows.append([])
+            elif self.inside and tag == "td" and self.rows:
+                self.cell = []
+
+        def handle_endtag(self, tag: str) -> None:
+            if tag == "table":
+                self.inside = False
+            elif tag == "td" and self.cell is not None:
+                self.rows[-1].append(" ".join("".join(self.cell).split()))
+                self.cell = None
+
+        def handle_data(self, data: str) -> None:
+            if self.cell is not None:
+                self.cell.append(data)
+
+    parser = Rows()
+    parser.feed(dom)
+    expected = {
+        (a.part, a.pin or "—", a.quantity, a.text)
+        for nr in demo.result.networks
+        for a in nr.assumptions
+    }
+    assert expected == {("U30", "5 (ALERT)", q, v) for q, v in
+                        (("I_OL", "2mA"), ("V_OL", "0.4V"), ("I_off", "10uA"))}  # fmt: skip
+    got = {(r[0], r[1], r[2], r[3]) for r in parser.rows}
+    assert got == expected
+    for row in parser.rows:
+        assert row[4].startswith("open-drain")  # the assumption it comes from
+        assert "part-library entry" in row[5]  # where to put the real one
+        assert row[6] == "/ALERT"  # the network resting on it
+    assert 'id="assumptions"' in dom and ">Assumed values to confirm<" in dom
+    # the limits resting on them are marked in the network's own table
+    section = dom.split('id="net-alert"', 1)[1].split('class="network"', 1)[0]
+    assert 'data-constraint="driver-sink" data-assumed="yes"' in section
+    assert 'data-basis="assumed"' in section
+    if shutil.which("pdftotext"):  # and the printed note carries the table
+        pdf = tmp_path / "assumed.pdf"
+        chromium(tmp_path, f"--print-to-pdf={pdf}", "--no-pdf-header-footer", demo.note.as_uri())
+        text = subprocess.run(["pdftotext", str(pdf), "-"], capture_output=True, text=True,
+                              timeout=30, check=True).stdout  # fmt: skip
+        assert "Assumed values to confirm" in text and "open-drain" in text
