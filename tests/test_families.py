@@ -134,3 +134,38 @@ def test_families_command_json(capsys: pytest.CaptureFixture[str]) -> None:
     doc = json.loads(capsys.readouterr().out)
     assert doc["schema"] == "pullproof.families/1"
     assert {f["name"] for f in doc["families"]} == set(load_families())
+
+
+@pytest.mark.parametrize("family", ["LVCMOS33", "LVCMOS25", "LVCMOS18", "LVCMOS12"])
+def test_jesd8_leakage_is_an_assumption(family: str) -> None:
+    # No JESD8 input leakage figure could be confirmed (REFERENCES §3.1): the families carry
+    # 10 µA, the UM10204 I/O limit (confirmed (secondary)), marked assumed, never as data.
+    fam = load_families()[family]
+    at = fam.model().at(fam.supply[0])
+    assert at.i_high is not None and at.i_low is not None
+    assert at.i_high.magnitude("A") == pytest.approx(10e-6)
+    assert at.i_high.source.origin is Origin.ASSUMED
+    assert at.i_low.source.origin is Origin.ASSUMED
+    assert "UM10204" in at.i_high.source.reason
+    assert at.vih_min is not None and at.vih_min.source.origin is Origin.FAMILY
+
+
+def test_every_family_carries_input_currents_for_both_levels() -> None:
+    for fam in load_families().values():
+        assert fam.i_high is not None and fam.i_low is not None, fam.name
+
+
+def test_families_command_flags_assumed_and_missing_numbers(
+    capsys: pytest.CaptureFixture[str],
+) -> None:
+    assert main(["families"]) == 0
+    text = capsys.readouterr().out
+    block = text.split("LVCMOS33 ", 1)[1].split("\n\n", 1)[0]
+    assert "ASSUMED (not in its standard): i_high, i_low" in block
+    assert "MISSING: C_in" in block
+    assert main(["families", "--json"]) == 0
+    doc = json.loads(capsys.readouterr().out)
+    by = {f["name"]: f for f in doc["families"]}
+    assert by["LVCMOS33"]["assumed"] == ["i_high", "i_low"]
+    assert by["HC"]["assumed"] == [] and by["HC"]["missing"] == []
+    assert by["LS"]["missing"] == ["C_in"]

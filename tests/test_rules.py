@@ -102,6 +102,24 @@ def test_mains_patterns(tmp_path: Path) -> None:
          "pullproof.toml:4:1: unknown rules key 'net.speed'"),
         ("derating = true\n",
          "pullproof.toml:1:1: rules key 'derating': write the value as text, e.g. \"5%\""),
+        ('assume = "ttl"\n',
+         "pullproof.toml:1:1: rules key 'assume': cannot read 'ttl'; "
+         "expected one of cmos, lvttl, none"),
+        ('\n[[net]]\nmatch = "J*"\ninput = "mystery"\n',
+         "pullproof.toml:4:1: rules key 'net.input': cannot read 'mystery'; expected an input "
+         "class or family: cmos, lvttl, AC, ACT, AHC, AHCT, LVC, LV, 4000B, HC, HCT, LVCMOS33, "
+         "LVCMOS25, LVCMOS18, LVCMOS12, 74, LS"),
+        ('\n[[net]]\nmatch = "J*"\ninput = "HC"\ninput_supply = "MOTOR_BOARD"\n',
+         "pullproof.toml:5:1: rules key 'net.input_supply': 'MOTOR_BOARD' is neither a rail "
+         'listed in [rails] nor a supply name such as "3V3" or "+5V"'),
+        ('[rails]\nVBUS = { nominal = "5V", min = "5.1V" }\n',
+         "pullproof.toml:2:1: rules key 'rails.VBUS': min and max must enclose the nominal "
+         "voltage"),
+        ('[rails]\nVRAM = { follows = "VCC", nominal = "5V" }\n',
+         "pullproof.toml:2:1: rules key 'rails.VRAM': write { follows = \"RAIL\" } on its own"),
+        ('[resistor]\npower = { "0604" = "0.1W" }\n',
+         "pullproof.toml:2:1: rules key 'resistor.power': '0604' is not a chip size such as "
+         "0603, nor array"),
     ],
 )  # fmt: skip
 def test_errors(tmp_path: Path, text: str, message: str) -> None:
@@ -136,3 +154,49 @@ def test_net_capacitance_needs_a_unit(tmp_path: Path) -> None:
         f"{tmp_path / 'pullproof.toml'}:3:1: rules key 'net.capacitance': cannot read '300'; "
         "expected a capacitance such as 100n, 4n7 or 100 nF"
     )
+
+
+def test_assume_defaults_to_cmos_and_can_be_off(tmp_path: Path) -> None:
+    assert _rules(tmp_path, "").assume == "cmos"
+    assert _rules(tmp_path, 'assume = "none"\n').assume == "none"
+    assert _rules(tmp_path, 'assume = "LVTTL"\n').with_assume("none").assume == "none"
+
+
+def test_rails_with_a_range_or_following_another(tmp_path: Path) -> None:
+    rules = _rules(
+        tmp_path,
+        '[rails]\nVCC = "5V"\nVBUS = { nominal = "5V", min = "4.4V", max = "5.25V" }\n'
+        'VRAM = { follows = "VCC" }\nVAUX = { follows = "VNOWHERE" }\n',
+    )
+    vbus = rules.rail("VBUS")
+    assert vbus is not None and vbus.v_min is not None and vbus.v_max is not None
+    assert (vbus.v_min.magnitude("V"), vbus.v_max.magnitude("V")) == (4.4, 5.25)
+    vram = rules.rail("VRAM")
+    assert vram is not None and vram.follows == "VCC" and vram.v_min is not None
+    assert vram.v_min.magnitude("V") == pytest.approx(4.75)  # VCC's 5 V − 5 % (the default)
+    vaux = rules.rail("VAUX")
+    assert vaux is not None and vaux.follows == "VNOWHERE" and vaux.v_min is None
+
+
+def test_resistor_ratings_by_chip_size(tmp_path: Path) -> None:
+    rules = _rules(
+        tmp_path,
+        '[resistor]\npower = { "0603" = "0.1W", "array" = "1/32W" }\nworking_voltage = "50V"\n',
+    )
+    p = rules.for_size("resistor.power", "0603")
+    assert p is not None and p.magnitude("W") == pytest.approx(0.1)
+    assert p.source.origin is Origin.RULES
+    assert rules.for_size("resistor.power", "1206") is None  # the size's assumed rating applies
+    array = rules.for_size("resistor.power", "array")
+    assert array is not None and array.magnitude("W") == pytest.approx(1 / 32)
+    wv = rules.for_size("resistor.working_voltage", "1206")
+    assert wv is not None and wv.magnitude("V") == pytest.approx(50.0)
+
+
+def test_assumed_defaults_say_what_they_stand_for(tmp_path: Path) -> None:
+    rules = _rules(tmp_path, "")
+    tol = rules.get("resistor.tolerance")
+    assert tol.source.origin is Origin.ASSUMED
+    assert tol.source.stands is not None
+    assert (tol.source.stands.quantity, tol.source.stands.text) == ("tolerance", "5%")
+    assert "resistor.tolerance" in tol.source.stands.fix
