@@ -26,7 +26,7 @@ from typing import Any
 from ..errors import ValueParseError
 from ..provenance import Origin, Provenance, Sourced, Stands, Status
 from ..units import parse_current, parse_power, parse_voltage
-from .loader import Family, InputModel, family_from_table
+from .loader import QUANTITY, Family, InputModel, family_from_table
 
 __all__ = [
     "INPUT_KEYS",
@@ -40,13 +40,8 @@ CLASS_FILE = "classes.toml"
 #: The keys of an input class, as the family files name them, with how reports name them.
 INPUT_KEYS: Mapping[str, str] = MappingProxyType(
     {
-        "supply": "supply range",
-        "vih_min": "V_IH,min",
-        "vil_max": "V_IL,max",
-        "i_high": "I_high",
-        "i_low": "I_low",
-        "v_in_max": "V_in,max",
-        "c_in": "C_in",
+        k: QUANTITY[k]
+        for k in ("supply", "vih_min", "vil_max", "i_high", "i_low", "v_in_max", "c_in")
     }
 )
 _STATUS: Mapping[str, Status] = MappingProxyType(

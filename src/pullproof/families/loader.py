@@ -27,6 +27,7 @@ from ..units import Q_, parse_capacitance, parse_current, parse_time, parse_volt
 
 __all__ = [
     "ASSUMED_WORD",
+    "QUANTITY",
     "STATUS_WORDS",
     "Family",
     "InputModel",
@@ -166,7 +167,7 @@ class Family:
             else "a part-library entry or field for the part you fit"
         )
         basis = f"part library entry {self.name} (assumed)" if library else f"family {self.name}"
-        stands = Stands("", "", _QUANTITY.get(key, key), "", basis, fix)
+        stands = Stands("", "", QUANTITY.get(key, key), "", basis, fix)
         reason = _join(detail, self.assumption or "a stand-in value nothing states")
         return Provenance(
             Origin.ASSUMED, f"assumed {key} ({where})", Status.DEFAULT, reason, stands=stands
@@ -317,8 +318,8 @@ def _join(*parts: str) -> str:
     return "; ".join(p for p in parts if p)
 
 
-# How reports name each number of an input model.
-_QUANTITY: Mapping[str, str] = MappingProxyType(
+#: How reports name each number of an input model.
+QUANTITY: Mapping[str, str] = MappingProxyType(
     {
         "vih_min": "V_IH,min",
         "vil_max": "V_IL,max",
