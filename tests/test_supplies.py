@@ -19,7 +19,7 @@ from pullproof.families.match import PartLibrary, resolve_part
 from pullproof.nets import build_circuit
 from pullproof.review import review
 from pullproof.rules import load_rules
-from pullproof.supplies import read_supply_name
+from pullproof.supplies import read_supply_name, usb_bus_name
 
 
 @pytest.mark.parametrize(
@@ -122,3 +122,22 @@ def test_pull_to_a_supply_of_unknown_voltage(tmp_path: Path) -> None:
     assert rail.v_min.source.stands.basis == "rail range (input class)"
     # R2 pulls the enable line, a signal whose name merely carries a voltage
     assert by_net["/PUMP_EN_3V3"].network.rail.name == "+5V"
+
+
+@pytest.mark.parametrize(
+    ("name", "usb"),
+    [
+        ("VBUS", True),
+        ("+VUSB", True),
+        ("USB_5V", True),
+        ("+5V_USB", True),
+        ("/PSU/VBUS", True),
+        ("USB_3V3", False),  # a 3.3 V rail on the USB side, not bus power
+        ("VBUS_EN", False),  # an enable line
+        ("USB_DP", False),  # a data line
+    ],
+)
+def test_names_of_usb_bus_power(name: str, usb: bool) -> None:
+    # USB bus power is VBUS, a nominal 5 V supply (USB 2.0 specification §7.2.1, from memory);
+    # how boards name it is common practice
+    assert usb_bus_name(name) is usb

@@ -33,7 +33,7 @@ from .families.match import PartInfo, PartKind, family_from_name
 from .network import InputLevels, Rail
 from .provenance import Origin, Provenance, Sourced, Stands, Status
 from .rules import RailSpec, Rules
-from .supplies import read_supply_name
+from .supplies import usb_bus_name
 from .units import Q_, format_si
 
 __all__ = ["CLASS_RANGE", "POWER_PIN_NAMES", "Assumer", "io_supply", "stand"]
@@ -49,7 +49,6 @@ _OTHER_SUPPLY = re.compile(
     r"(?i)(CORE|INT|DVDD|AVDD|AVCC|VDDA|ANA|ADC|VREF|USB|VREG|VIN|PLL|RTC|BAT)"
 )
 _BANK = re.compile(r"(?i)(?:VCCO|VCCIO|VDDIO|IOVDD|VIO)_?(\d+)$")
-_USB_WORDS = frozenset({"VBUS", "VUSB", "USB"})
 _LEVEL_KEYS = ("vih_min", "vil_max", "i_high", "i_low", "c_in")
 
 
@@ -210,10 +209,7 @@ class Assumer:
     def usb(self, name: str) -> bool:
         """True for a rail named for USB bus power that the rules do not list."""
         bare = name.rsplit("/", 1)[-1]
-        if not self.enabled or bare in self.rules.rails or read_supply_name(bare) is None:
-            return False
-        words = re.split(r"[_\-\s+]+", bare.upper())
-        return any(w.rstrip("0123456789") in _USB_WORDS for w in words)
+        return self.enabled and bare not in self.rules.rails and usb_bus_name(bare)
 
     def usb_rail(self, name: str) -> Rail | None:
         cls = self.classes.rails.get("usb-bus")

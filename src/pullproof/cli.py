@@ -192,9 +192,10 @@ def _cmd_parts(args: argparse.Namespace) -> int:
     result = _review_from(args, circuit)
     library = load_library(Path(args.root), [Path(p) for p in args.parts or ()])
     needs = needs_of(result, circuit, library)
+    if args.write:  # written first: a file that cannot be written stops before any listing
+        write_skeleton(needs, args.write, force=args.force, inputs=result.inputs, root=args.root)
     print(parts_listing(needs), end="")
     if args.write:
-        write_skeleton(needs, args.write, force=args.force, inputs=result.inputs, root=args.root)
         print(f"wrote the part-library skeleton {args.write} ({len(needs.entries)} parts)")
     return 0
 

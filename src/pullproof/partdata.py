@@ -21,7 +21,10 @@ from .families.match import RATING_QUANTITY, PartKind, PartLibrary, classify
 from .network import Missing
 from .results import Assumption, NetworkResult, ReviewResult
 
-__all__ = ["DATASHEET", "Need", "Needs", "PartNeeds", "RailNeeds", "RulesNeed", "needs_of"]
+__all__ = [
+    "DATASHEET", "Need", "Needs", "PartNeeds", "RailNeeds", "RulesNeed", "natural", "needs_of",
+    "refs_text",
+]  # fmt: skip
 
 # Where each number is found in a datasheet (common practice in how datasheets present them).
 DATASHEET: Mapping[str, str] = {
@@ -151,7 +154,8 @@ class Needs:
         return [p for p in self.parts if not p.entry and p.library_keys]
 
 
-def _natural(text: str) -> list[object]:
+def natural(text: str) -> list[object]:
+    """A sort key that orders R2 before R10."""
     return [int(t) if t.isdigit() else t for t in re.split(r"(\d+)", text)]
 
 
@@ -277,14 +281,14 @@ def needs_of(result: ReviewResult, circuit: Circuit, library: PartLibrary) -> Ne
     c = _Collector(circuit, library)
     for r in result.networks:
         c.network(r)
-    parts = sorted((p for p in c.parts.values() if p.needs), key=lambda p: _natural(p.name))
+    parts = sorted((p for p in c.parts.values() if p.needs), key=lambda p: natural(p.name))
     for p in parts:
-        p.refs.sort(key=_natural)
+        p.refs.sort(key=natural)
         if p.inputs and not p.family:  # the skeleton holds the whole input description
             _fill_inputs(p, result.assume)
     return Needs(
         parts,
-        sorted(c.rails.values(), key=lambda r: _natural(r.name)),
+        sorted(c.rails.values(), key=lambda r: natural(r.name)),
         list(c.rules.values()),
         c.nets,
         c.other,
@@ -304,4 +308,4 @@ def _fill_inputs(p: PartNeeds, word: str) -> None:
 
 
 def refs_text(refs: Iterable[str]) -> str:
-    return ", ".join(sorted(refs, key=_natural))
+    return ", ".join(sorted(refs, key=natural))

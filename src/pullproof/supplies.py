@@ -25,7 +25,9 @@ from dataclasses import dataclass
 
 from .circuit import Circuit, Net
 
-__all__ = ["RailTie", "SupplyName", "read_supply_name", "supply_function", "supply_nets"]
+__all__ = [
+    "RailTie", "SupplyName", "read_supply_name", "supply_function", "supply_nets", "usb_bus_name",
+]  # fmt: skip
 
 
 @dataclass(frozen=True)
@@ -123,6 +125,22 @@ def read_supply_name(name: str) -> SupplyName | None:
     if volts is None and usb:
         volts = 5.0
     return SupplyName(None if volts is None else sign * volts)
+
+
+def usb_bus_name(name: str) -> bool:
+    """True for a name of USB bus power: a USB word (``VBUS``, ``VUSB``, ``USB``) and no
+    voltage other than 5 V (``VBUS``, ``+VUSB``, ``USB_5V``, ``+5V_USB``; not ``USB_3V3``)."""
+    bare = name.rsplit("/", 1)[-1].strip().upper()
+    tokens = [t for t in _SPLIT.split(_SIGN.sub("", bare)) if t]
+    if not any(t.rstrip("0123456789") in _USB_POWER for t in tokens):
+        return False
+    for t in tokens:
+        v = _volts(t)
+        if v is not None and abs(v - 5.0) > 1e-9:
+            return False  # a rail for something else on the USB side: USB_3V3
+        if v is None and not _SUPPLY_WORD.match(t) and t not in _QUALIFIERS | _USB_POWER:
+            return False  # a signal: VBUS_EN, USB_DP
+    return True
 
 
 def supply_function(net: Net) -> str:

@@ -22,7 +22,7 @@ from pathlib import Path
 
 from ..errors import PullproofError
 from ..families.classes import INPUT_KEYS, load_classes
-from ..partdata import DATASHEET, Need, Needs, PartNeeds, refs_text
+from ..partdata import DATASHEET, Need, Needs, PartNeeds, natural, refs_text
 from ..textfile import write_report
 
 __all__ = ["SkeletonError", "parts_listing", "skeleton_text", "write_skeleton"]
@@ -112,13 +112,14 @@ def rules_snippet(needs: Needs) -> list[str]:
     fields: list[str] = []
     i2c: list[str] = []
     for n in needs.rules:
-        refs = refs_text(n.refs)
+        refs = _waiting(sorted(n.refs, key=natural), 6).replace("; ", ", ")
         if n.quantity == "tolerance":
             resistor.append(f'tolerance = "{n.text}"   # assumed for {refs}')
         elif n.quantity == "TCR":
             resistor.append(f'tcr = "{n.text}"   # assumed for {refs}')
         elif n.quantity == "bus capacitance":
-            i2c.append(f'bus_capacitance = "{n.text}"   # assumed for {_waiting(n.networks)}')
+            nets = _waiting(n.networks, 3)
+            i2c.append(f'bus_capacitance = "{n.text}"   # assumed for {nets}')
         else:
             m = re.match(r"^(?P<v>.+) \((?P<size>\d{4} size|array-element)\)$", n.text)
             key = "power" if n.quantity == "power rating" else "working_voltage"
@@ -267,6 +268,8 @@ def write_skeleton(
         PullproofError: it cannot be written (or is a file the review read).
     """
     target = Path(path)
+    if target.is_dir():
+        raise SkeletonError(f"{target}: is a folder; name the file to write")
     if target.exists() and not force:
         raise SkeletonError(f"{target}: exists; give --force to overwrite it")
     write_report(target, skeleton_text(needs, root), "part-library skeleton", tuple(inputs))
