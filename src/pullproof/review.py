@@ -157,7 +157,11 @@ def _findings_for_site(resolver: Resolver, site: PullSite) -> list[Finding]:
                 "between the thresholds",
             )
         )
-    if not site.inputs and not site.drivers and resolver.offboard_input(site.net.name) is None:
+    if (
+        not site.inputs
+        and not site.drivers
+        and resolver.inputs.offboard_input(site.net.name) is None
+    ):
         labels = [r for r, _ in (*site.ups, *site.downs)]
         out.append(
             Finding(
@@ -339,7 +343,7 @@ def review_circuit(
         resolver.rail_key,
         library_pins=pins,
         ohms=lambda ref: _nominal_ohms(infos[ref]),
-        offboard=lambda net: resolver.offboard_input(net) is not None,
+        offboard=lambda net: resolver.inputs.offboard_input(net) is not None,
     )
     resolver.elements = topo.elements  # topology names the array elements it found
 
