@@ -48,6 +48,8 @@ _OTHER_SUPPLY = re.compile(
 )
 _BANK = re.compile(r"(?i)(?:VCCO|VCCIO|VDDIO|IOVDD|VIO)_?(\d+)$")
 _LEVEL_KEYS = ("vih_min", "vil_max", "i_high", "i_low", "c_in")
+# every number of one corner of an input (all InputLevels fields but its supply)
+_NUMBER_KEYS = tuple(f.name for f in fields(InputLevels) if f.name != "vdd")
 
 
 def stand(value: Sourced, part: str, pin: str) -> Sourced:
@@ -170,20 +172,17 @@ class Assumer:
         those they give at some corner: outside its table a family stays silent, it is not
         filled); V_in,max is filled only for an input on another supply, which needs it."""
         changes: dict[str, Any] = {}
-        stand_in = self.input_class()
-        fill = stand_in.at(levels.vdd) if stand_in is not None else None
         wanted = (*_LEVEL_KEYS, "v_in_max") if other_supply else _LEVEL_KEYS
-        keys = tuple(k for k in wanted if k not in has)
-        for f in fields(levels):
-            value = getattr(levels, f.name)
-            if f.name == "vdd":
-                continue
-            if value is None and fill is not None and f.name in keys:
-                value = getattr(fill, f.name)
+        gaps = [k for k in wanted if k not in has and getattr(levels, k) is None]
+        stand_in = self.input_class() if gaps else None
+        if stand_in is not None:  # evaluated only where a gap needs it (a review has many)
+            fill = stand_in.at(levels.vdd)
+            changes.update((k, getattr(fill, k)) for k in gaps)
+        for name in _NUMBER_KEYS:
+            value = changes.get(name, getattr(levels, name))
             if isinstance(value, Sourced) and value.source.origin is Origin.ASSUMED:
-                value = stand(value, ref, pin) if self.enabled else None
-            changes[f.name] = value
-        return replace(levels, **changes)
+                changes[name] = stand(value, ref, pin) if self.enabled else None
+        return replace(levels, **changes) if changes else levels
 
     # ------------------------------------------------------------------ drivers, arrays
     def driver(self, values: Mapping[str, Sourced | None], ref: str, pin: str) -> dict[str, Any]:

@@ -92,6 +92,7 @@ class Resolver:
         self.elements: Mapping[str, Element] = elements or {}
         self.assumer = Assumer(circuit, infos, rules, self.rail_of)
         self.inputs = Inputs(self)
+        self._rail_cache: dict[str, Rail | None] = {}
 
     def element(self, label: str) -> Element:
         """The resistor a label names (``R3``, ``RN1 (1–8)``) as part and pins."""
@@ -128,6 +129,11 @@ class Resolver:
         """The rail's voltage range: from the rules or its name; for a rail named for USB bus
         power the USB figures, and for one whose voltage nothing states the range every part
         it powers accepts (both assumed; see :mod:`pullproof.assume`). None: unknown."""
+        if name not in self._rail_cache:  # asked once per input's supply: worth keeping
+            self._rail_cache[name] = self._find_rail(name)
+        return self._rail_cache[name]
+
+    def _find_rail(self, name: str) -> Rail | None:
         if self.assumer.rails.usb(name):
             usb = self.assumer.rails.usb_rail(name)
             if usb is not None:
