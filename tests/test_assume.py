@@ -324,3 +324,30 @@ def test_sarif_results_carry_their_basis(
     assert any(a.startswith("U1 pin 4 (PA0) I_high = 10uA (cmos)")
                for a in door["properties"]["assumptions"])  # fmt: skip
     assert "MARGINAL (assumed)" in door["message"]["text"]
+
+
+def test_a_comparison_reports_a_verdict_that_now_rests_on_data(tmp_path: Path) -> None:
+    from pullproof.compare import compare_reviews
+
+    root = coop(tmp_path)
+    old = review(root)
+    stated = tmp_path / "stated.toml"  # the MCU's inputs and the reed's ratings, as stated
+    stated.write_text(
+        '[part.COOP]\nmatch = ["COOP_MCU"]\nkind = "other"\npins = ["PA*"]\n'
+        'supply = ["1.8V", "3.6V"]\ni_high = "1uA"\ni_low = "1uA"\nv_in_max = "VDD+0.3V"\n'
+        "[[part.COOP.levels]]\n"
+        'vdd = ["1.8V", "3.6V"]\nvih_min = "0.7 VDD"\nvil_max = "0.3 VDD"\n'
+        '[part.REED]\nmatch = ["REED"]\nkind = "switch"\ncontact_max = "100mA"\n'
+        'wetting = "0.1mA"\n',
+        encoding="utf-8",
+    )
+    rules = tmp_path / "rules.toml"
+    rules.write_text(
+        '[resistor]\ntolerance = "5%"\ntcr = "200ppm/K"\npower = "0.1W"\nworking_voltage = "50V"\n',
+        encoding="utf-8",
+    )
+    new = review(root, parts=[stated], rules=rules)
+    assert net(new, "DOOR_SHUT").basis is Basis.DATA
+    changes = compare_reviews(new, old)
+    door = next(c for c in changes.changed if c.key.endswith("DOOR_SHUT"))
+    assert "basis assumed → data" in door.what

@@ -3,8 +3,8 @@
 Networks are paired by resistor reference and net: first where both agree, then by the
 resistors alone (the net was renamed), then by the net alone (the resistor was
 renumbered). A pair is reported when the value or tolerance changed, a window edge moved
-by more than 1 %, the verdict changed, or the rail or direction changed; unpaired networks
-are added or removed. Findings are compared by kind, net and parts.
+by more than 1 %, the verdict or its basis (data or assumed) changed, or the rail or
+direction changed; unpaired networks are added or removed. Findings are compared by kind, net and parts.
 """
 
 from __future__ import annotations
@@ -96,6 +96,8 @@ def _differences(new: NetworkResult, old: NetworkResult) -> tuple[str, ...]:
             out.append(f"window {side} {_edge(b, word)} → {_edge(a, word)}{change}")
     if new.verdict is not old.verdict:
         out.append(f"verdict {old.verdict.value} → {new.verdict.value}")
+    elif new.basis is not old.basis:  # the same verdict, now on data (or on an assumption)
+        out.append(f"basis {old.basis.value} → {new.basis.value}")
     return tuple(out)
 
 
