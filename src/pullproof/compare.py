@@ -4,7 +4,8 @@ Networks are paired by resistor reference and net: first where both agree, then 
 resistors alone (the net was renamed), then by the net alone (the resistor was
 renumbered). A pair is reported when the value or tolerance changed, a window edge moved
 by more than 1 %, the verdict or its basis (data or assumed) changed, or the rail or
-direction changed; unpaired networks are added or removed. Findings are compared by kind, net and parts.
+direction changed; unpaired networks are added or removed. Findings are compared by kind,
+net and parts.
 """
 
 from __future__ import annotations
