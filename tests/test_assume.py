@@ -351,3 +351,37 @@ def test_a_comparison_reports_a_verdict_that_now_rests_on_data(tmp_path: Path) -
     changes = compare_reviews(new, old)
     door = next(c for c in changes.changed if c.key.endswith("DOOR_SHUT"))
     assert "basis assumed → data" in door.what
+
+
+def test_the_supply_nearest_the_pins_bank(tmp_path: Path) -> None:
+    # How parts name their supply pins is common practice: a bank's I/O supply carries the
+    # bank number (VCCO_35 for IO_L1P_35); a core supply (VCCINT) never feeds I/O pins.
+    from pullproof.assume import io_supply
+    from pullproof.rules import load_rules
+
+    fpga = (
+        Pin("1", (-7.62, 5.08), "power_in", "VCCINT"),
+        Pin("2", (-7.62, 2.54), "power_in", "VCCO_34"),
+        Pin("3", (-7.62, 0), "power_in", "VCCO_35"),
+        Pin("4", (7.62, 2.54), "bidirectional", "IO_L1P_34"),
+        Pin("5", (7.62, 0), "bidirectional", "IO_L1P_35"),
+        Pin("40", (7.62, -2.54), "bidirectional", "IO_0"),
+        Pin("41", (-7.62, -2.54), "power_in", "VDD"),
+        Pin("60", (-7.62, -5.08), "power_in", "VDD"),
+    )
+    bench = LabelPlacer(frozenset({"+1V0", "+3V3", "+1V8", "+2V5", "+5V"}))
+    nets = {"1": "+1V0", "2": "+3V3", "3": "+1V8", "4": "A", "5": "B", "40": "C", "41": "+2V5",
+            "60": "+5V"}  # fmt: skip
+    bench.place("U1", "Coop:FPGA", fpga, "FPGA", nets)
+    circuit = build_circuit(bench.b.write(tmp_path / "fpga.kicad_sch"))
+    rules = load_rules(tmp_path / "fpga.kicad_sch")
+    part = circuit.part("U1")
+    assert part is not None
+
+    def first(pin: str) -> str:
+        return io_supply(circuit, part, pin, lambda n: rules.rail(n.name))[0].name
+
+    assert first("4") == "+3V3"  # bank 34
+    assert first("5") == "+1V8"  # bank 35
+    # no bank in its name: a supply named for I/O first (VCCO), the nearest by pin number
+    assert first("40") == "+1V8"
