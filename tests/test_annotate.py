@@ -396,6 +396,8 @@ def _realworld_projects() -> list[str]:
 @pytest.mark.parametrize("project", _realworld_projects())
 def test_realworld_write_keeps_the_nets(tmp_path: Path, project: str) -> None:
     shutil.copytree(REALWORLD / project, tmp_path / project)
+    for copy in (tmp_path / project).glob("*.kicad_sch"):
+        copy.chmod(0o644)  # the corpus is read-only; the user's own copy is writable
     info = json.loads((tmp_path / project / "files.json").read_text(encoding="utf-8"))
     root = tmp_path / project / info["root_schematic"]
     before = _texts(root.parent)

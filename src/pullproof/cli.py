@@ -3,18 +3,24 @@
 Each subcommand parses its options, calls the library, prints a report, and
 returns an exit code. Errors the user can cause are :class:`PullproofError`
 subclasses and print as one line; anything else is an internal error (exit 3),
-also printed as one line.
+also printed as one line. Everything printed passes through
+:func:`~pullproof.report.safe_text.for_terminal`: a schematic's control characters
+and bidi marks reach the console only as escapes.
 """
 
 from __future__ import annotations
 
 import argparse
+import contextlib
+import signal
 import sys
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Iterator, Sequence
 from typing import TYPE_CHECKING
 
 from . import __version__
 from .errors import EXIT_FINDINGS, EXIT_INPUT, EXIT_INTERNAL, PullproofError
+from .limits import DEFAULT_MAX_FILE_BYTES, DEFAULT_MAX_TOTAL_BYTES, InputPolicy
+from .report.safe_text import for_terminal, json_text
 
 __all__ = ["main"]
 
@@ -22,31 +28,35 @@ if TYPE_CHECKING:
     from .results import ReviewResult
 
 Handler = Callable[[argparse.Namespace], int]
+_MAX_ERROR_CHARS = 400  # an error is one readable line, whatever text it quotes
+
+
+def _out(text: str) -> None:
+    """Print a report (its own newlines kept, every other control character escaped)."""
+    sys.stdout.write(for_terminal(text))
+
+
+def _policy(args: argparse.Namespace) -> InputPolicy:
+    return InputPolicy(
+        max_file_bytes=round(args.max_file_size * 1e6),
+        max_total_bytes=round(args.max_total_size * 1e6),
+        allow_outside=args.allow_outside,
+    )
 
 
 def _cmd_nets(args: argparse.Namespace) -> int:
-    import json
-
     from .nets import build_circuit
     from .report.nets_out import nets_json, nets_table
 
-    circuit = build_circuit(args.root)
-    if args.json:
-        print(json.dumps(nets_json(circuit), indent=1, ensure_ascii=False))
-    else:
-        print(nets_table(circuit), end="")
+    circuit = build_circuit(args.root, _policy(args))
+    _out(json_text(nets_json(circuit)) + "\n" if args.json else nets_table(circuit))
     return 0
 
 
 def _cmd_families(args: argparse.Namespace) -> int:
-    import json
-
     from .families.report import families_json, families_table
 
-    if args.json:
-        print(json.dumps(families_json(), indent=1, ensure_ascii=False))
-    else:
-        print(families_table(), end="")
+    _out(json_text(families_json()) + "\n" if args.json else families_table())
     return 0
 
 
@@ -60,20 +70,17 @@ def _review_from(args: argparse.Namespace) -> ReviewResult:
         refs=parse_ref_list(args.ref) if args.ref else None,
         where=parse_where(args.where or ()),
     )
-    return review(args.root, rules=args.rules, parts=args.parts or (), select=select)
+    return review(
+        args.root, rules=args.rules, parts=args.parts or (), select=select, policy=_policy(args)
+    )
 
 
 def _cmd_review(args: argparse.Namespace) -> int:
-    import json
-
     from .report.console import review_table
     from .report.review_json import review_json
 
     result = _review_from(args)
-    if args.json:
-        print(json.dumps(review_json(result), indent=1, ensure_ascii=False))
-    else:
-        print(review_table(result), end="")
+    _out(json_text(review_json(result)) + "\n" if args.json else review_table(result))
     return EXIT_FINDINGS if result.worst.rank >= _FAIL_ON[args.fail_on] else 0
 
 
@@ -85,7 +92,7 @@ def _cmd_note(args: argparse.Namespace) -> int:
     result = _review_from(args)
     title = args.title or f"Pull resistor design note: {Path(args.root).stem}"
     write_note(result, Path(args.output), title=title, author=args.author or "")
-    print(f"wrote {args.output} ({len(result.networks)} networks, worst: {result.worst.value})")
+    _out(f"wrote {args.output} ({len(result.networks)} networks, worst: {result.worst.value})\n")
     return 0
 
 
@@ -95,13 +102,17 @@ def _cmd_demo(args: argparse.Namespace) -> int:
     from .demo import write_demo
 
     out = write_demo(args.dir, force=args.force)
-    print(f"wrote the demo project to {out.root.parent}:")
-    for path in out.files:
-        print(f"  {path}")
+    lines = [f"wrote the demo project to {out.root.parent}:"]
+    lines += [f"  {path}" for path in out.files]
     tally = Counter(r.verdict for r in out.result.networks)
     counts = ", ".join(f"{v.value} {tally[v]}" for v in sorted(tally, key=lambda v: v.rank))
-    print(f"wrote the design note {out.note} ({len(out.result.networks)} networks: {counts})")
-    print(f"open the note in a browser; review the demo again with: pullproof review {out.root}")
+    lines.append(
+        f"wrote the design note {out.note} ({len(out.result.networks)} networks: {counts})"
+    )
+    lines.append(
+        f"open the note in a browser; review the demo again with: pullproof review {out.root}"
+    )
+    _out("\n".join(lines) + "\n")
     return 0
 
 
@@ -113,15 +124,51 @@ def _cmd_annotate(args: argparse.Namespace) -> int:
         refs=parse_ref_list(args.ref) if args.ref else None,
         where=parse_where(args.where or ()),
     )
-    plan = plan_annotation(args.root, rules=args.rules, parts=args.parts or (), select=select)
+    plan = plan_annotation(
+        args.root,
+        rules=args.rules,
+        parts=args.parts or (),
+        select=select,
+        policy=_policy(args),
+        remove=args.remove,
+    )
     if args.write:
-        apply_annotation(plan)
-    print(format_plan(plan, written=args.write), end="")
+        apply_annotation(plan, backup=args.backup)
+    _out(format_plan(plan, written=args.write))
     return 0
 
 
-def _selection_options(p: argparse.ArgumentParser) -> None:
+def _megabytes(text: str) -> float:
+    try:
+        value = float(text)
+    except ValueError:
+        value = float("nan")
+    if not 0 < value <= 1e6:  # also refuses nan
+        raise argparse.ArgumentTypeError(f"expected a size in MB above 0, got {text!r}")
+    return value
+
+
+def _reading_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("root", help="root schematic file (.kicad_sch)")
+    p.add_argument(
+        "--allow-outside",
+        action="store_true",
+        help="read sheet files given by absolute paths or outside the root's folder",
+    )
+    p.add_argument(
+        "--max-file-size", metavar="MB", type=_megabytes, default=DEFAULT_MAX_FILE_BYTES / 1e6,
+        help=f"refuse a schematic file above this size (default {DEFAULT_MAX_FILE_BYTES / 1e6:g})",
+    )  # fmt: skip
+    p.add_argument(
+        "--max-total-size", metavar="MB", type=_megabytes,
+        default=DEFAULT_MAX_TOTAL_BYTES / 1e6,
+        help=f"refuse schematic files above this size in all "
+        f"(default {DEFAULT_MAX_TOTAL_BYTES / 1e6:g})",
+    )  # fmt: skip
+
+
+def _selection_options(p: argparse.ArgumentParser) -> None:
+    _reading_options(p)
     p.add_argument(
         "--rules", metavar="FILE", help="rules file (default: pullproof.toml beside ROOT)"
     )
@@ -149,7 +196,7 @@ def _build_parser() -> argparse.ArgumentParser:
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", required=True)
 
     p = sub.add_parser("nets", help="list the nets of a schematic (root plus sub-sheets)")
-    p.add_argument("root", help="root schematic file (.kicad_sch)")
+    _reading_options(p)
     p.add_argument("--json", action="store_true", help="print the pullproof.nets/1 JSON document")
     p.set_defaults(handler=_cmd_nets)
 
@@ -182,6 +229,12 @@ def _build_parser() -> argparse.ArgumentParser:
         action="store_true",
         help="modify the schematic files (default: only list the fields that would change)",
     )
+    p.add_argument(
+        "--remove",
+        action="store_true",
+        help="take the result fields out again (with --write: the files as before annotate)",
+    )
+    p.add_argument("--backup", action="store_true", help="with --write, keep FILE.bak")
     p.set_defaults(handler=_cmd_annotate)
 
     p = sub.add_parser("demo", help="write the demo project and its design note into a folder")
@@ -195,26 +248,65 @@ def _build_parser() -> argparse.ArgumentParser:
     return parser
 
 
+class _Interrupted(KeyboardInterrupt):
+    """A termination signal, raised so that clean-up code (``finally``) runs."""
+
+    def __init__(self, signum: int) -> None:
+        super().__init__(signum)
+        self.signum = signum
+
+
+@contextlib.contextmanager
+def _signals_interrupt() -> Iterator[None]:
+    """While running, SIGTERM and SIGHUP interrupt like Ctrl-C: writes are rolled back."""
+
+    def handler(signum: int, frame: object) -> None:
+        raise _Interrupted(signum)
+
+    saved = {}
+    try:
+        for sig in (getattr(signal, "SIGTERM", None), getattr(signal, "SIGHUP", None)):
+            if sig is not None:
+                saved[sig] = signal.signal(sig, handler)
+    except ValueError:  # not the main thread: signals stay as they are
+        pass
+    try:
+        yield
+    finally:
+        for sig, old in saved.items():
+            signal.signal(sig, old)
+
+
+def _error(text: str) -> None:
+    """One line on stderr: newlines joined, control characters escaped, length capped."""
+    line = for_terminal(" ".join(text.splitlines()), keep="")
+    if len(line) > _MAX_ERROR_CHARS:
+        line = line[: _MAX_ERROR_CHARS - 1] + "…"
+    print(line, file=sys.stderr)
+
+
 def main(argv: Sequence[str] | None = None) -> int:
     """Run pullproof with ``argv`` (default: ``sys.argv[1:]``) and return the exit code."""
     parser = _build_parser()
     args = parser.parse_args(argv)
     handler: Handler = args.handler
+    with contextlib.suppress(AttributeError, ValueError):  # never fail on an odd stdout
+        sys.stdout.reconfigure(errors="backslashreplace")  # type: ignore[union-attr]
     try:
-        return handler(args)
+        with _signals_interrupt():
+            return handler(args)
     except PullproofError as exc:
         # Positioned errors already read FILE:LINE:COL: …; others get the program name.
-        text = str(exc) if exc.location is not None else f"pullproof: {exc}"
-        print(text.replace("\n", " "), file=sys.stderr)
+        _error(str(exc) if exc.location is not None else f"pullproof: {exc}")
         return exc.exit_code
     except BrokenPipeError:
         return 0
-    except KeyboardInterrupt:
-        print("pullproof: interrupted", file=sys.stderr)
-        return 130
+    except KeyboardInterrupt as exc:
+        _error("pullproof: interrupted; nothing was left half-written")
+        return 128 + exc.signum if isinstance(exc, _Interrupted) else 130
     except RecursionError:
-        print("pullproof: input nested too deeply to process", file=sys.stderr)
+        _error(f"pullproof: {getattr(args, 'root', '')}: input nested too deeply to process")
         return EXIT_INPUT
     except Exception as exc:
-        print(f"pullproof: internal error: {type(exc).__name__}: {exc}", file=sys.stderr)
+        _error(f"pullproof: internal error: {type(exc).__name__}: {exc}")
         return EXIT_INTERNAL

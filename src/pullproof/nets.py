@@ -34,6 +34,7 @@ from collections.abc import Hashable
 
 from .circuit import Circuit, Net, NetMember, Part, PartPin, Placement, SheetInstance
 from .errors import SchematicError
+from .limits import InputPolicy
 from .schematic import LibSymbol, SymbolPlacement
 from .schematic.hierarchy import Hierarchy, Instance, load_hierarchy
 from .schematic.sheetgraph import SheetGraph, bus_members, sheet_graph
@@ -258,15 +259,16 @@ def _unique_names(nets: list[Net]) -> list[Net]:
     return out
 
 
-def build_circuit(root: str | os.PathLike[str]) -> Circuit:
+def build_circuit(root: str | os.PathLike[str], policy: InputPolicy | None = None) -> Circuit:
     """Read ``root`` and its sheets and return the connected circuit.
 
     :param root: the root ``.kicad_sch`` file.
+    :param policy: size limits and whether sheets may lie outside the root's folder.
     :raises SchematicSyntaxError: malformed text in any file (``FILE:LINE:COL``).
     :raises SchematicError: a file is missing, unreadable, not a schematic, or a
         sheet includes itself.
     """
-    return circuit_from_hierarchy(load_hierarchy(root), os.fspath(root))
+    return circuit_from_hierarchy(load_hierarchy(root, policy), os.fspath(root))
 
 
 def circuit_from_hierarchy(hier: Hierarchy, root: str) -> Circuit:

@@ -28,6 +28,7 @@ from .families.match import (
     load_part_library,
     resolve_part,
 )
+from .limits import InputPolicy
 from .nets import build_circuit
 from .network import Direction, Missing, PullNetwork, PullResistor, Rail
 from .provenance import Origin, Provenance, Sourced, Status
@@ -246,6 +247,7 @@ def review(
     parts: Sequence[str | os.PathLike[str]] = (),
     select: Selection | None = None,
     circuit: Circuit | None = None,
+    policy: InputPolicy | None = None,
 ) -> ReviewResult:
     """Review every pull resistor of the schematic rooted at ``root``.
 
@@ -255,12 +257,13 @@ def review(
         parts: part-library files; by default ``pullproof-parts.toml`` beside the root.
         select: restrict the judged resistors (``--ref``, ``--where``).
         circuit: ``root`` already read and connected (saves reading it again).
+        policy: size limits and whether sheets may lie outside the root's folder.
 
     Raises:
         PullproofError: unreadable or malformed schematic, rules, part library or field.
     """
     root_path = Path(root)
-    circuit = circuit if circuit is not None else build_circuit(root_path)
+    circuit = circuit if circuit is not None else build_circuit(root_path, policy)
     rules_obj = load_rules(root_path, Path(rules) if rules is not None else None)
     library = _library(root_path, [Path(p) for p in parts])
     result = review_circuit(circuit, rules_obj, library, select or Selection())

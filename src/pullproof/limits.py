@@ -1,0 +1,62 @@
+"""What pullproof agrees to read: size limits, the project folder, and bounds on content.
+
+Hostile or broken input must end in a one-line error, never in a hang or in memory
+exhaustion. Every limit is a named constant here so the README's "Robustness" section
+and the code say the same thing. The sizes are checked before a file is parsed.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+__all__ = [
+    "DEFAULT_MAX_FILE_BYTES",
+    "DEFAULT_MAX_TOTAL_BYTES",
+    "MAX_BUS_MEMBERS",
+    "MAX_COORDINATE_MM",
+    "MAX_EXPANDED_ITEMS",
+    "MAX_INSTANCES",
+    "MAX_SHEET_DEPTH",
+    "MAX_TEXT_FILE_BYTES",
+    "MAX_TOKENS_PER_FILE",
+    "InputPolicy",
+]
+
+MB = 1_000_000
+
+# Real schematic sheets are well under 5 MB each; reading takes about 2 s per MB.
+DEFAULT_MAX_FILE_BYTES = 10 * MB
+DEFAULT_MAX_TOTAL_BYTES = 25 * MB
+# Rules files and part libraries are a few kB.
+MAX_TEXT_FILE_BYTES = 1 * MB
+# A sheet is at most a few metres wide (A0 is 1189 mm); ±10 m leaves room for any drawing
+# and keeps every micrometre coordinate, sum and product far inside float and int ranges.
+MAX_COORDINATE_MM = 10_000
+# A vector label A[0..N] of more members than any real bus (a 1024-bit bus is rare).
+MAX_BUS_MEMBERS = 4096
+# Sheet instances in the whole tree, and placed items (symbols, labels, sheet pins)
+# summed over every instance: a sheet used many times multiplies its items.
+MAX_INSTANCES = 10_000
+MAX_SHEET_DEPTH = 50  # sheets within sheets; real designs nest a handful deep
+MAX_EXPANDED_ITEMS = 2_000_000
+# Lists and words in one file: real files hold about 150 000 per MB (1.5 million at the
+# size limit); a file of nothing but "()" would hold a million per MB and take five times
+# as long to read as real text of that size.
+MAX_TOKENS_PER_FILE = 2_000_000
+
+
+@dataclass(frozen=True)
+class InputPolicy:
+    """Which files a review may read: size limits and whether sheets may lie outside.
+
+    ``allow_outside`` lets a sheet reference be absolute or lead out of the root
+    schematic's folder (``--allow-outside``); by default such a reference is refused.
+    """
+
+    max_file_bytes: int = DEFAULT_MAX_FILE_BYTES
+    max_total_bytes: int = DEFAULT_MAX_TOTAL_BYTES
+    allow_outside: bool = False
+
+    def __post_init__(self) -> None:
+        if self.max_file_bytes <= 0 or self.max_total_bytes <= 0:
+            raise ValueError("size limits must be positive")
