@@ -182,11 +182,17 @@ def _decimal(text: str, exp: int) -> Decimal:
     return value
 
 
+# The magnitudes a value may have in its base unit (V, A, Ω, F, s, W, 1/K, fraction):
+# 1e-18 to 1e15 hold every real part and keep every product, square and quotient the
+# constraints form far inside the range of a float (a rail of 1e308 V would overflow).
+_SMALLEST = Decimal("1e-18")
+_LARGEST = Decimal("1e15")
+
+
 def _finite(value: Decimal, text: str, expected: str, field: str | None, part: str | None) -> float:
-    result = float(value)
-    if not math.isfinite(result) or (result == 0.0 and value != 0):
+    if value != 0 and not _SMALLEST <= abs(value) <= _LARGEST:
         raise _fail(text, f"{expected} (the number is out of range)", field, part)
-    return result
+    return float(value)
 
 
 def _resistance_head(
