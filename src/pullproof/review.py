@@ -18,7 +18,7 @@ from pathlib import Path
 
 from .circuit import Circuit, Part
 from .detect import Resolver, UnknownRail, enabled_internal_pull
-from .errors import PullproofError
+from .errors import PullproofError, SourceText, ValueParseError
 from .evaluate import evaluate
 from .families.match import (
     LibraryEntry,
@@ -34,6 +34,7 @@ from .network import Direction, Missing, PullNetwork, PullResistor, Rail
 from .provenance import Origin, Provenance, Sourced, Status
 from .results import Finding, NetworkResult, ReviewResult, Skipped, Verdict
 from .rules import RULES_FILE, Rules, load_rules
+from .textfile import Unreadable, read_regular
 from .topology import PullSite, find_pulls
 from .units import Q_
 
@@ -266,11 +267,39 @@ def review(
     circuit = circuit if circuit is not None else build_circuit(root_path, policy)
     rules_obj = load_rules(root_path, Path(rules) if rules is not None else None)
     library = _library(root_path, [Path(p) for p in parts])
-    result = review_circuit(circuit, rules_obj, library, select or Selection())
+    try:
+        result = review_circuit(circuit, rules_obj, library, select or Selection())
+    except ValueParseError as exc:
+        raise _placed(exc, circuit) from None
     if rules_obj.file:  # Rules keeps only the file name; the note reads and digests the file
         used = Path(rules) if rules is not None else root_path.parent / RULES_FILE
         result = replace(result, rules_file=os.path.abspath(used))
     return result
+
+
+_FIELD_READ_LIMIT = 1 << 30  # the file was read within its limit already; this only finds a line
+
+
+def _placed(exc: ValueParseError, circuit: Circuit) -> ValueParseError:
+    """A part-field error placed at the field in its schematic file (``FILE:LINE:COL``)."""
+    part = circuit.part(exc.part) if exc.part else None
+    if exc.location is not None or part is None or exc.field is None or not part.placements:
+        return exc
+    prop = re.compile(r'\(property\s+"' + re.escape(exc.field) + '"', re.IGNORECASE)
+    for pl in part.placements:
+        display = os.path.join(os.path.dirname(circuit.root), pl.file)
+        try:
+            text = read_regular(circuit.files[pl.file], _FIELD_READ_LIMIT).decode(
+                "utf-8", "replace"
+            )
+        except (Unreadable, KeyError):
+            continue
+        m = prop.search(text, pl.span[0], pl.span[1])
+        if m is not None or pl is part.placements[-1]:
+            where = SourceText(display, text).locate(m.start() if m else pl.span[0])
+            return ValueParseError(exc.text, expected=exc.expected, field=exc.field,
+                                   part=exc.part, location=where)  # fmt: skip
+    return exc
 
 
 def review_circuit(
