@@ -69,6 +69,10 @@ def _mm(value: float) -> str:
     return "0" if text in ("-0", "") else text
 
 
+def _ref_unit(value: str | tuple[str, int], drawn: int) -> tuple[str, int]:
+    return (value, drawn) if isinstance(value, str) else value
+
+
 def _q(text: str) -> str:
     return '"' + text.replace("\\", "\\\\").replace('"', '\\"') + '"'
 
@@ -84,7 +88,7 @@ class _Placed:
     value: str
     fields: dict[str, str]
     uuid: str
-    instances: dict[str, str]
+    instances: dict[str, str | tuple[str, int]]
     dnp: bool
 
 
@@ -98,7 +102,9 @@ class SchematicBuilder:
     _placed: list[_Placed] = field(default_factory=list)
     _items: list[str] = field(default_factory=list)
     _v6_table: list[tuple[str, str, int]] = field(default_factory=list)
+    _v6_adopted: list[tuple[str, str, int]] = field(default_factory=list)
     _power_count: int = 0
+    v6_child: bool = False  # a v6 sub-sheet: its references live in the root's table
 
     # -- parts ------------------------------------------------------------------------------
     def part(
@@ -113,13 +119,14 @@ class SchematicBuilder:
         unit: int = 1,
         value: str = "",
         fields: dict[str, str] | None = None,
-        instances: dict[str, str] | None = None,
+        instances: dict[str, str | tuple[str, int]] | None = None,
         dnp: bool = False,
         power: str = "",
     ) -> SchematicBuilder:
         """Place one unit of a part. ``power`` ("global"/"local") marks a power symbol library.
 
-        ``instances`` maps sheet-instance uuid paths to references (for sheets used twice).
+        ``instances`` maps sheet-instance uuid paths to a reference, or to (reference, unit)
+        when that instance places another unit than the drawn ``unit`` (sheets used twice).
         """
         self._libs.setdefault(lib_id, (tuple(pins), power))
         self._placed.append(
@@ -273,12 +280,12 @@ class SchematicBuilder:
             inst = (
                 ' (instances (project "fixture"'
                 + "".join(
-                    f" (path {_q(path)} (reference {_q(r)}) (unit {p.unit}))"
-                    for path, r in paths.items()
+                    f" (path {_q(path)} (reference {_q(r)}) (unit {u}))"
+                    for path, (r, u) in ((k, _ref_unit(v, p.unit)) for k, v in paths.items())
                 )
                 + "))"
             )
-        else:
+        elif not self.v6_child:
             self._v6_table.append((f"/{p.uuid}", p.ref, p.unit))
         dnp = " (dnp yes)" if p.dnp else (" (dnp no)" if self.version > V6 else "")
         return (
@@ -303,14 +310,26 @@ class SchematicBuilder:
             *(f"{ind}{item}" for item in self._items),
             *(f"{ind}{self._placed_text(p)}" for p in self._placed),
         ]
-        if self._v6_table:
+        if self._v6_table or self._v6_adopted:
             rows = "".join(
                 f" (path {_q(path)} (reference {_q(r)}) (unit {u}))"
-                for path, r, u in self._v6_table
+                for path, r, u in (*self._v6_table, *self._v6_adopted)
             )
             lines.append(f"{ind}(symbol_instances{rows})")
         lines.append(")")
         return "\n".join(lines) + "\n"
+
+    def adopt_v6(self, child: SchematicBuilder) -> SchematicBuilder:
+        """Write ``child``'s references into this v6 root's ``symbol_instances`` table.
+
+        The child's placements give ``instances`` keyed by v6 sheet paths (``/SHEET-UUID``);
+        each becomes a row ``/SHEET-UUID/SYMBOL-UUID``, as the v6 root stores them.
+        """
+        for p in child._placed:
+            for path, value in p.instances.items():
+                ref, unit = _ref_unit(value, p.unit)
+                self._v6_adopted.append((f"{path}/{p.uuid}", ref, unit))
+        return self
 
     def write(self, path: str | Path) -> Path:
         """Write the text to ``path`` (UTF-8) and return the path."""

@@ -25,6 +25,7 @@ from .report.safe_text import for_terminal, json_text
 __all__ = ["main"]
 
 if TYPE_CHECKING:
+    from .circuit import Circuit
     from .results import ReviewResult
 
 Handler = Callable[[argparse.Namespace], int]
@@ -63,25 +64,68 @@ def _cmd_families(args: argparse.Namespace) -> int:
 _FAIL_ON = {"marginal": 1, "incomplete": 2, "fail": 3}
 
 
-def _review_from(args: argparse.Namespace) -> ReviewResult:
+def _review_from(args: argparse.Namespace, circuit: Circuit | None = None) -> ReviewResult:
+    from dataclasses import replace
+
+    from .compare import compare_reviews
     from .review import Selection, parse_ref_list, parse_where, review
 
     select = Selection(
         refs=parse_ref_list(args.ref) if args.ref else None,
         where=parse_where(args.where or ()),
     )
-    return review(
-        args.root, rules=args.rules, parts=args.parts or (), select=select, policy=_policy(args)
+    policy = _policy(args)
+    result = review(
+        args.root,
+        rules=args.rules,
+        parts=args.parts or (),
+        select=select,
+        circuit=circuit,
+        policy=policy,
     )
+    against = getattr(args, "against", None)
+    if against:
+        # The older revision is judged by the same explicit --rules/--parts when given, else
+        # by the files beside it, as they were in that revision.
+        old = review(
+            against, rules=args.rules, parts=args.parts or (), select=select, policy=policy
+        )
+        result = replace(result, changes=compare_reviews(result, old))
+    return result
 
 
 def _cmd_review(args: argparse.Namespace) -> int:
+    from .nets import build_circuit
     from .report.console import review_table
     from .report.review_json import review_json
+    from .report.sarif import sarif_log
+    from .textfile import write_report
 
-    result = _review_from(args)
+    circuit = build_circuit(args.root, _policy(args))
+    result = _review_from(args, circuit)
+    if args.sarif:
+        write_report(args.sarif, json_text(sarif_log(result, circuit)) + "\n", "SARIF log",
+                     result.inputs)  # fmt: skip
     _out(json_text(review_json(result)) + "\n" if args.json else review_table(result))
-    return EXIT_FINDINGS if result.worst.rank >= _FAIL_ON[args.fail_on] else 0
+    return EXIT_FINDINGS if result.gate.rank >= _FAIL_ON[args.fail_on] else 0
+
+
+def _cmd_gate(args: argparse.Namespace) -> int:
+    from .report.console import review_table
+    from .roots import roots_of
+
+    roots = roots_of(args.files)
+    if not roots:
+        _out("pullproof gate: no schematic among the given files; nothing to review\n")
+        return 0
+    code = 0
+    for root in roots:
+        one = argparse.Namespace(**vars(args), root=str(root), ref=None, where=None)
+        result = _review_from(one)
+        _out(review_table(result) + "\n")
+        if result.gate.rank >= _FAIL_ON[args.fail_on]:
+            code = EXIT_FINDINGS
+    return code
 
 
 def _cmd_note(args: argparse.Namespace) -> int:
@@ -148,8 +192,7 @@ def _megabytes(text: str) -> float:
     return value
 
 
-def _reading_options(p: argparse.ArgumentParser) -> None:
-    p.add_argument("root", help="root schematic file (.kicad_sch)")
+def _limit_options(p: argparse.ArgumentParser) -> None:
     p.add_argument(
         "--allow-outside",
         action="store_true",
@@ -168,7 +211,8 @@ def _reading_options(p: argparse.ArgumentParser) -> None:
 
 
 def _selection_options(p: argparse.ArgumentParser) -> None:
-    _reading_options(p)
+    p.add_argument("root", help="root schematic file (.kicad_sch)")
+    _limit_options(p)
     p.add_argument(
         "--rules", metavar="FILE", help="rules file (default: pullproof.toml beside ROOT)"
     )
@@ -187,6 +231,14 @@ def _selection_options(p: argparse.ArgumentParser) -> None:
     )
 
 
+def _against_option(p: argparse.ArgumentParser) -> None:
+    p.add_argument(
+        "--against",
+        metavar="OLD",
+        help="also review OLD (the root schematic of an older revision) and report what changed",
+    )
+
+
 def _build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="pullproof",
@@ -196,7 +248,8 @@ def _build_parser() -> argparse.ArgumentParser:
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", required=True)
 
     p = sub.add_parser("nets", help="list the nets of a schematic (root plus sub-sheets)")
-    _reading_options(p)
+    p.add_argument("root", help="root schematic file (.kicad_sch)")
+    _limit_options(p)
     p.add_argument("--json", action="store_true", help="print the pullproof.nets/1 JSON document")
     p.set_defaults(handler=_cmd_nets)
 
@@ -206,17 +259,41 @@ def _build_parser() -> argparse.ArgumentParser:
 
     p = sub.add_parser("review", help="judge every pull-up and pull-down resistor")
     _selection_options(p)
+    _against_option(p)
     p.add_argument("--json", action="store_true", help="print the pullproof.review/1 JSON document")
     p.add_argument(
         "--fail-on",
         choices=sorted(_FAIL_ON, key=_FAIL_ON.__getitem__),
         default="fail",
-        help="exit 1 when any verdict or finding is at least this bad (default: fail)",
+        help="exit 1 when any verdict or finding that is not accepted is at least this bad "
+        "(default: fail)",
+    )
+    p.add_argument(
+        "--sarif",
+        metavar="FILE",
+        help="also write the results as a SARIF 2.1.0 log (for code-review and CI tools)",
     )
     p.set_defaults(handler=_cmd_review)
 
+    p = sub.add_parser(
+        "gate",
+        help="review the root schematics of changed files (for commit hooks and CI)",
+    )
+    p.add_argument("files", nargs="*", metavar="FILE", help="changed files (.kicad_sch)")
+    p.add_argument("--rules", metavar="FILE", help="rules file (default: beside each root)")
+    p.add_argument("--parts", metavar="FILE", action="append", help="part-library file")
+    _limit_options(p)
+    p.add_argument(
+        "--fail-on",
+        choices=sorted(_FAIL_ON, key=_FAIL_ON.__getitem__),
+        default="fail",
+        help="exit 1 when a verdict or finding that is not accepted is this bad (default: fail)",
+    )
+    p.set_defaults(handler=_cmd_gate)
+
     p = sub.add_parser("note", help="write the HTML design note")
     _selection_options(p)
+    _against_option(p)
     p.add_argument("-o", "--output", required=True, metavar="NOTE.html", help="file to write")
     p.add_argument("--title", help="title of the note")
     p.add_argument("--author", help="author named in the note")

@@ -1,7 +1,9 @@
 """Connectivity: a root schematic and its sheets → a :class:`~pullproof.circuit.Circuit`.
 
 Within a sheet file, touching items form groups (:mod:`pullproof.schematic.sheetgraph`).
-Across the hierarchy, groups join by name:
+A sheet instance places, for each symbol, the unit its own ``instances`` entry names (a
+sheet used four times may place units 1…4 of one drawn symbol), so each distinct unit
+assignment of a file gets its own groups. Across the hierarchy, groups join by name:
 
 * a power symbol (its ``(power)`` flag) joins every net of its Value; a hidden
   ``power_in`` pin of an ordinary part joins the net named by the pin name;
@@ -9,14 +11,18 @@ Across the hierarchy, groups join by name:
 * a ``global_label`` joins by name everywhere;
 * a local ``label`` joins by name within its sheet instance, and so does a
   ``hierarchical_label``, which also joins the parent's sheet pin of that name;
-* vector names ``A[0..7]`` stand for members A0…A7; items on one bus join member
-  by member.
+* a local ``label`` whose name is that of a power symbol or global label *on the same
+  sheet instance* joins that global net as well (same-name rule); on a sheet without
+  one it stays local;
+* bus names stand for their members (:mod:`pullproof.schematic.busnames`): vectors
+  ``A[0..7]`` join member by member in order, groups ``NAME{A B}`` by member name.
 
-Net naming rule (deterministic, applied in this order):
+Net naming rule (deterministic, applied in this order; ties broken by character order,
+so the drawing order never matters):
 
-1. the first power-symbol name (sorted) — e.g. ``+3V3``;
-2. else the first global label name (sorted);
-3. else the first hidden power-pin name (sorted);
+1. the first power-symbol name — e.g. ``+3V3`` wins over ``VDD_IO`` and over any label;
+2. else the first global label name;
+3. else the first hidden power-pin name;
 4. else the local or hierarchical label in the shallowest sheet instance (ties:
    sheet path, then name), written as the instance path plus the name — ``/KEY_UP``,
    ``/PSU/FB``;
@@ -36,8 +42,9 @@ from .circuit import Circuit, Net, NetMember, Part, PartPin, Placement, SheetIns
 from .errors import SchematicError
 from .limits import InputPolicy
 from .schematic import LibSymbol, SymbolPlacement
+from .schematic.busnames import BusName, bus_members, parse_bus_name
 from .schematic.hierarchy import Hierarchy, Instance, load_hierarchy
-from .schematic.sheetgraph import SheetGraph, bus_members, sheet_graph
+from .schematic.sheetgraph import SheetGraph, sheet_graph
 
 __all__ = ["build_circuit", "circuit_from_hierarchy", "natural_key"]
 
@@ -108,8 +115,13 @@ class _Builder:
     def __init__(self, hier: Hierarchy) -> None:
         self.hier = hier
         self.join = _Joiner()
-        self.graphs: dict[str, SheetGraph] = {
-            key: sheet_graph(model, _libs(hier, key)) for key, model in hier.models.items()
+        self.libs = {key: _libs(hier, key) for key in hier.models}
+        # One graph per file and per unit assignment: instances that place the drawn units
+        # share the first; a sheet instance placing other units gets a graph of its own.
+        self.graphs: dict[tuple[str, tuple[int, ...]], SheetGraph] = {}
+        self.refs: dict[int, list[tuple[str, int]]] = {
+            inst.index: [_reference(sym, inst, hier) for sym in hier.models[inst.file].symbols]
+            for inst in hier.instances
         }
         self.names: dict[Hashable, list[tuple[int, str, str]]] = defaultdict(list)
         self.members: dict[tuple[str, str], NetMember] = {}
@@ -123,15 +135,32 @@ class _Builder:
             return ("G", name)
         return ("L", inst.index, name)
 
+    def graph(self, inst: Instance) -> SheetGraph:
+        """The sheet graph of ``inst``'s file with the units this instance places."""
+        units = tuple(unit for _, unit in self.refs[inst.index])
+        key = (inst.file, units)
+        graph = self.graphs.get(key)
+        if graph is None:
+            graph = self.graphs[key] = sheet_graph(
+                self.hier.models[inst.file], self.libs[inst.file], units
+            )
+        return graph
+
     def instance(self, inst: Instance) -> None:
         hier, join = self.hier, self.join
         model = hier.models[inst.file]
-        graph = self.graphs[inst.file]
+        graph = self.graph(inst)
         i = inst.index
+        # Names that join everywhere and are present on this sheet instance: a local label
+        # of the same name on this sheet joins that net too (same-name rule).
+        present: set[str] = set()
         for pp in graph.power:
             key: Hashable = ("G", pp.name) if pp.scope == "global" else ("L", i, pp.name)
             join.union(("g", i, pp.group), key)
             self.name(key, 0 if pp.symbol else 2, "", pp.name)
+            if pp.symbol and pp.scope == "global":
+                present.add(pp.name)
+        present.update(lb.name for lb in model.labels if lb.kind == "global_label")
         for label, group in zip(model.labels, graph.labels, strict=True):
             members = bus_members(label.name)
             for text in members or (label.name,):
@@ -140,15 +169,16 @@ class _Builder:
                     join.union(("g", i, group), key)
                 rank = 1 if label.kind == "global_label" else 3
                 self.name(key, rank, "" if rank == 1 else inst.path, text)
+                if label.kind == "label" and text in present:
+                    join.union(key, ("G", text))
         if inst.parent >= 0:  # sheet pins of this instance's block in the parent
             parent = hier.instances[inst.parent]
             blk = hier.models[parent.file].sheets[inst.block]
-            groups = self.graphs[parent.file].sheet_pins[inst.block]
+            groups = self.graph(parent).sheet_pins[inst.block]
             for sp, group in zip(blk.pins, groups, strict=True):
                 if group >= 0:
                     join.union(("g", parent.index, group), ("L", i, sp.name))
-        for sym, row in zip(model.symbols, graph.pins, strict=True):
-            ref, unit = _reference(sym, inst, hier)
+        for sym, row, (ref, unit) in zip(model.symbols, graph.pins, self.refs[i], strict=True):
             if not ref or ref.startswith("#"):
                 continue  # virtual: power symbols and flags are not parts
             self.parts[ref].append((sym, inst, unit))
@@ -160,26 +190,44 @@ class _Builder:
                 )
 
     def buses(self) -> None:
-        """Join vector items that share a bus, member by member."""
+        """Join the items that share one bus: vectors member by member in order (``A[0..7]``
+        to ``D[0..7]``); where a group is on the bus, members also join by short name (``CLK``
+        of ``NAME{D[0..3] CLK}`` with ``CLK`` of ``{CLK}``)."""
+        children: dict[int, dict[int, Instance]] = defaultdict(dict)
+        for c in self.hier.instances:
+            if c.parent >= 0:
+                children[c.parent][c.block] = c
         for inst in self.hier.instances:
-            model = self.hier.models[inst.file]
-            children = {c.block: c for c in self.hier.instances if c.parent == inst.index}
-            for items in self.graphs[inst.file].buses:
-                lists: list[list[Hashable]] = []
-                for kind, a, b in items:
-                    if kind == "label":
-                        label = model.labels[a]
-                        lists.append(
-                            [self.scope(inst, label.kind, m) for m in bus_members(label.name)]
-                        )
-                    else:
-                        name = model.sheets[a].pins[b].name
-                        child = children.get(a)
-                        if child is not None:
-                            lists.append([("L", child.index, m) for m in bus_members(name)])
-                for other in lists[1:]:
-                    for x, y in zip(lists[0], other, strict=False):
+            for items in self.graph(inst).buses:
+                expanded = self.bus_items(inst, items, children[inst.index])
+                vectors = [keys for parsed, keys in expanded if not parsed.group]
+                for other in vectors[1:]:
+                    for x, y in zip(vectors[0], other, strict=False):
                         self.join.union(x, y)
+                if any(parsed.group for parsed, _ in expanded):
+                    by_short: dict[str, Hashable] = {}
+                    for parsed, keys in expanded:
+                        for short, key in zip(parsed.shorts, keys, strict=True):
+                            self.join.union(by_short.setdefault(short, key), key)
+
+    def bus_items(
+        self, inst: Instance, items: tuple[tuple[str, int, int], ...], kids: dict[int, Instance]
+    ) -> list[tuple[BusName, list[Hashable]]]:
+        """Each bus item's expansion and the name keys of its members in ``inst``."""
+        model = self.hier.models[inst.file]
+        out: list[tuple[BusName, list[Hashable]]] = []
+        for kind, a, b in items:
+            if kind == "label":
+                label = model.labels[a]
+                parsed = parse_bus_name(label.name)
+                if parsed is not None:
+                    out.append((parsed, [self.scope(inst, label.kind, m) for m in parsed.members]))
+                continue
+            parsed = parse_bus_name(model.sheets[a].pins[b].name)
+            child = kids.get(a)
+            if parsed is not None and child is not None:
+                out.append((parsed, [("L", child.index, m) for m in parsed.members]))
+        return out
 
     def circuit(self, root: str) -> Circuit:
         for inst in self.hier.instances:

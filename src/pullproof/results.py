@@ -14,10 +14,15 @@ from .network import Missing, PullNetwork
 from .provenance import Sourced
 
 __all__ = [
+    "FINDING_KINDS",
+    "Acceptance",
+    "AcceptanceMark",
     "Bound",
     "BoundKind",
+    "Changes",
     "Check",
     "Finding",
+    "NetworkChange",
     "NetworkResult",
     "Recommendation",
     "ReviewResult",
@@ -47,6 +52,60 @@ class Verdict(StrEnum):
 
 
 Severity = Verdict  # findings use the same scale
+
+
+# Every kind of finding a review can report (an acceptance may name one).
+FINDING_KINDS = frozenset(
+    {
+        "floating-input",
+        "rail-above-input-tolerance",
+        "up-and-down",
+        "pull-without-input",
+        "unreadable-value",
+    }
+)
+
+
+@dataclass(frozen=True)
+class Acceptance:
+    """A reviewer's recorded decision that a verdict or finding stands.
+
+    ``kind``, ``value_ohms`` and ``tolerance`` record what was accepted (a verdict word or a
+    finding kind, and the resistor as it was); an empty ``kind`` or a None value records
+    nothing, so that part cannot lapse. ``ref`` and ``net`` are globs ("" matches any).
+    """
+
+    origin: str  # "field" (pullproof.accept on a part) or "rules" ([[accept]] in the rules)
+    where: str  # "field 'pullproof.accept' of R17" or "pullproof.toml:12"
+    ref: str
+    net: str
+    kind: str
+    value_ohms: float | None
+    tolerance: float | None
+    reason: str
+    by: str = ""
+    date: str = ""
+
+    @property
+    def pinned(self) -> bool:
+        """True when it records the kind it accepts (and, for a verdict, the resistor)."""
+        if not self.kind:
+            return False
+        return self.kind in FINDING_KINDS or (
+            self.value_ohms is not None and self.tolerance is not None
+        )
+
+
+@dataclass(frozen=True)
+class AcceptanceMark:
+    """An acceptance applied to one network or finding; ``lapsed`` says why it no longer holds."""
+
+    acceptance: Acceptance
+    lapsed: str = ""
+
+    @property
+    def holds(self) -> bool:
+        return not self.lapsed
 
 
 @dataclass(frozen=True)
@@ -130,17 +189,29 @@ class NetworkResult:
     checks: tuple[Check, ...] = ()
     advice: tuple[str, ...] = ()  # for an empty window: what would relax each binding bound
     missing: tuple[Missing, ...] = ()
+    accepted: AcceptanceMark | None = None
+
+    @property
+    def counts(self) -> bool:
+        """False while an acceptance holds: the verdict then does not count toward --fail-on."""
+        return self.accepted is None or not self.accepted.holds
 
 
 @dataclass(frozen=True)
 class Finding:
     """Something wrong that is not a window check (floating input, rail mismatch, …)."""
 
-    kind: str  # "floating-input", "rail-above-input-tolerance", "up-and-down", "pull-without-input"
+    kind: str  # one of FINDING_KINDS
     severity: Verdict
     net: str
     refs: tuple[str, ...]
     message: str
+    accepted: AcceptanceMark | None = None
+
+    @property
+    def counts(self) -> bool:
+        """False while an acceptance holds: the finding then does not count toward --fail-on."""
+        return self.accepted is None or not self.accepted.holds
 
 
 @dataclass(frozen=True)
@@ -150,6 +221,41 @@ class Skipped:
     ref: str
     net: str
     reason: str
+
+
+@dataclass(frozen=True)
+class NetworkChange:
+    """One network paired across two revisions, with what changed in words."""
+
+    key: str  # "R17 on /BOOT"
+    new: NetworkResult | None  # None: removed
+    old: NetworkResult | None  # None: added
+    what: tuple[str, ...] = ()  # empty for an unchanged pair
+
+
+@dataclass(frozen=True)
+class Changes:
+    """What changed between an older revision of the design and this one."""
+
+    old_root: str
+    old_files: tuple[tuple[str, str], ...]  # (sheet file, absolute path) read for the old review
+    old_rules_file: str | None
+    networks: tuple[NetworkChange, ...]  # added, removed and changed pairs (not unchanged ones)
+    unchanged: int
+    new_findings: tuple[Finding, ...]
+    resolved_findings: tuple[Finding, ...]
+
+    @property
+    def added(self) -> tuple[NetworkChange, ...]:
+        return tuple(c for c in self.networks if c.old is None)
+
+    @property
+    def removed(self) -> tuple[NetworkChange, ...]:
+        return tuple(c for c in self.networks if c.new is None)
+
+    @property
+    def changed(self) -> tuple[NetworkChange, ...]:
+        return tuple(c for c in self.networks if c.old is not None and c.new is not None)
 
 
 @dataclass(frozen=True)
@@ -163,8 +269,30 @@ class ReviewResult:
     files: tuple[tuple[str, str], ...] = ()  # (sheet file, absolute path) of every file read
     rules_file: str | None = None
     notes: tuple[str, ...] = field(default_factory=tuple)
+    warnings: tuple[str, ...] = ()  # stale or unrecorded acceptances
+    changes: Changes | None = None  # set by a review against an older revision
 
     @property
     def worst(self) -> Verdict:
+        """The worst verdict or finding severity, accepted ones included."""
         ranks = [n.verdict for n in self.networks] + [f.severity for f in self.findings]
+        return max(ranks, key=lambda v: v.rank, default=Verdict.PASS)
+
+    @property
+    def inputs(self) -> tuple[str, ...]:
+        """Every file the review read (schematics, rules), the older revision's too."""
+        inputs = [p for _, p in self.files]
+        if self.rules_file is not None:
+            inputs.append(self.rules_file)
+        if self.changes is not None:
+            inputs += [p for _, p in self.changes.old_files]
+            if self.changes.old_rules_file is not None:
+                inputs.append(self.changes.old_rules_file)
+        return tuple(inputs)
+
+    @property
+    def gate(self) -> Verdict:
+        """The worst verdict or severity that counts: what ``--fail-on`` compares."""
+        ranks = [n.verdict for n in self.networks if n.counts]
+        ranks += [f.severity for f in self.findings if f.counts]
         return max(ranks, key=lambda v: v.rank, default=Verdict.PASS)

@@ -16,6 +16,7 @@ from collections.abc import Iterable, Sequence
 from dataclasses import dataclass, replace
 from pathlib import Path
 
+from .acceptance import apply_acceptances, read_acceptances
 from .circuit import Circuit, Part
 from .detect import Resolver, UnknownRail, enabled_internal_pull
 from .errors import PullproofError, SourceText, ValueParseError
@@ -384,7 +385,7 @@ def review_circuit(
             )
         )
     files = tuple(sorted(circuit.files.items()))
-    return ReviewResult(
+    review_result = ReviewResult(
         root=circuit.root,
         networks=tuple(sorted(results, key=lambda r: r.network.net)),
         findings=tuple(findings),
@@ -392,6 +393,8 @@ def review_circuit(
         files=files,
         rules_file=rules.file or None,
     )
+    acceptances = read_acceptances(circuit, rules)
+    return apply_acceptances(review_result, acceptances, whole=not select.active)
 
 
 def _has_internal_pull(circuit: Circuit, ref: str) -> bool:

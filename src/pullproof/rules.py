@@ -37,7 +37,7 @@ from .units import (
     parse_voltage_ac,
 )
 
-__all__ = ["KEYS", "RULES_FILE", "NetRules", "RailSpec", "Rules", "load_rules"]
+__all__ = ["KEYS", "RULES_FILE", "NetRules", "RailSpec", "RawEntry", "Rules", "load_rules"]
 
 RULES_FILE = "pullproof.toml"
 
@@ -173,6 +173,16 @@ class NetRules:
 
 
 @dataclass(frozen=True)
+class RawEntry:
+    """One array-of-tables entry (``[[accept]]``) as written, with where it starts, for the
+    module that reads it (:mod:`pullproof.acceptance`)."""
+
+    file: str  # the rules file as given
+    line: int  # the line of its ``[[…]]`` header
+    table: Mapping[str, Any]
+
+
+@dataclass(frozen=True)
 class Rules:
     """The project rules, each value Sourced."""
 
@@ -180,6 +190,7 @@ class Rules:
     values: Mapping[str, Sourced | str | None]
     rails: Mapping[str, RailSpec] = field(default_factory=lambda: MappingProxyType({}))
     nets: tuple[tuple[str, Mapping[str, Sourced | str]], ...] = ()
+    accepts: tuple[RawEntry, ...] = ()  # [[accept]] entries, read by pullproof.acceptance
 
     def get(self, key: str) -> Any:
         """The value of a rules key (Sourced, a word, or None when unset and no default)."""
@@ -428,12 +439,12 @@ def load_rules(root: Path, explicit: Path | None = None) -> Rules:
 def _build(reader: _Reader | None, doc: Mapping[str, Any]) -> Rules:
     flat = _flatten(doc)
     values: dict[str, Sourced | str | None] = {}
-    valid = [*KEYS, "rails", "net"]
+    valid = [*KEYS, "rails", "net", "accept"]
     for dotted in flat:
         if dotted in _SECTIONS:  # a section name given a plain value, e.g. temperature = 5
             assert reader is not None
             raise reader.error(dotted, f"rules key {dotted!r}: write a table, e.g. [{dotted}]")
-        if dotted not in KEYS and dotted not in ("rails", "net"):
+        if dotted not in KEYS and dotted not in ("rails", "net", "accept"):
             assert reader is not None
             raise reader.unknown(dotted, valid)
     default_reader = _Reader(Path(RULES_FILE), "")
@@ -453,7 +464,25 @@ def _build(reader: _Reader | None, doc: Mapping[str, Any]) -> Rules:
         _check_together(reader, flat, values)
     rails = _rails(reader, flat.get("rails", {}), values)
     nets = _nets(reader, flat.get("net", []))
-    return Rules(reader.path.name if reader else "", MappingProxyType(values), rails, nets)
+    accepts = _raw_entries(reader, flat.get("accept", []), "accept")
+    name = reader.path.name if reader else ""
+    return Rules(name, MappingProxyType(values), rails, nets, accepts)
+
+
+def _raw_entries(reader: _Reader | None, entries: Any, name: str) -> tuple[RawEntry, ...]:
+    """``[[name]]`` tables as written, each with the line of its header."""
+    if not entries:
+        return ()
+    assert reader is not None
+    if not isinstance(entries, list) or not all(isinstance(e, dict) for e in entries):
+        raise reader.error(name, f"rules key {name!r}: write [[{name}]] tables")
+    header = re.compile(rf"^\s*\[\[\s*{re.escape(name)}\s*\]\]")
+    lines = [i for i, text in enumerate(reader.text.splitlines(), 1) if header.match(text)]
+    lines += [_line_of(reader.text, name)] * (len(entries) - len(lines))  # inline-table arrays
+    return tuple(
+        RawEntry(str(reader.path), line, MappingProxyType(dict(e)))
+        for line, e in zip(lines, entries, strict=False)
+    )
 
 
 def _check_together(reader: _Reader, flat: Mapping[str, Any], values: Mapping[str, Any]) -> None:

@@ -1,4 +1,5 @@
-"""Read a user's file safely: regular files only, size-limited, UTF-8 with positioned errors.
+"""Read a user's file safely (regular files only, size-limited, UTF-8 with positioned
+errors); write a report (note, SARIF log) atomically.
 
 A name in a schematic or on the command line may point anywhere: at a FIFO that never
 ends, at ``/dev/zero``, at a folder, a symbolic-link loop or a file of gigabytes. Only a
@@ -14,12 +15,14 @@ from __future__ import annotations
 import errno
 import os
 import stat
+import tempfile
+from collections.abc import Iterable
 from pathlib import Path
 
 from .errors import PullproofError, SourceText
 from .limits import MAX_TEXT_FILE_BYTES
 
-__all__ = ["Unreadable", "decode_utf8", "read_regular", "read_utf8"]
+__all__ = ["Unreadable", "decode_utf8", "read_regular", "read_utf8", "write_report"]
 
 
 class Unreadable(Exception):
@@ -123,3 +126,36 @@ def read_utf8(path: Path, error: type[PullproofError], what: str) -> str:
     except Unreadable as exc:
         raise error(f"cannot read {what} {path}: {exc.reason}") from None
     return decode_utf8(data, str(path), error, what).removeprefix("\ufeff")
+
+
+def write_report(path: str | os.PathLike[str], text: str, what: str, inputs: Iterable[str]) -> None:
+    """Write ``text`` to ``path`` atomically: a temporary file in the same folder replaces
+    it, so a failure never leaves half a file. ``what`` names the report in messages.
+
+    Raises:
+        PullproofError: ``path`` is one of ``inputs`` (a file the review read), or it
+            cannot be written.
+    """
+    target = Path(path)
+    if os.path.realpath(target) in {os.path.realpath(p) for p in inputs}:
+        raise PullproofError(f"{target}: refusing to write the {what} over an input of the review")
+    folder = target.parent if str(target.parent) else Path(".")
+    tmp_name = ""
+    try:
+        with tempfile.NamedTemporaryFile(
+            "w",
+            encoding="utf-8",
+            dir=folder,
+            prefix=f".{target.name}.",
+            suffix=".tmp",
+            delete=False,
+        ) as tmp:
+            tmp_name = tmp.name
+            tmp.write(text)
+            tmp.flush()
+            os.fsync(tmp.fileno())
+        os.replace(tmp_name, target)
+    except OSError as e:
+        if tmp_name and os.path.exists(tmp_name):
+            os.unlink(tmp_name)
+        raise PullproofError(f"{target}: cannot write the {what} ({e.strerror or e})") from None

@@ -8,6 +8,8 @@ must not (zero split and zero merged nets).
 from __future__ import annotations
 
 import json
+import subprocess
+import sys
 from pathlib import Path
 
 import pytest
@@ -49,3 +51,42 @@ def test_partition_matches_board(project: str) -> None:
     split, merged = _compare(oracle, ours)
     assert (split, merged) == ([], [])
     assert len(set(oracle) & set(ours)) == len(oracle)  # every board pin is one of ours
+
+
+EIGHT = {
+    "bablokb-buttonbar",
+    "buspirate6",
+    "dispensy",
+    "europi",
+    "gekkio-mbctest",
+    "openbook-c1",
+    "tt-demo",
+    "z80-512k",
+}
+
+
+@pytest.mark.skipif(not PROJECTS, reason=f"no real-world corpus at {REALWORLD}")
+def test_all_eight_designs_are_checked() -> None:
+    assert set(PROJECTS) >= EIGHT
+
+
+@pytest.mark.skipif(not PROJECTS, reason=f"no real-world corpus at {REALWORLD}")
+@pytest.mark.parametrize("project", PROJECTS)
+def test_corpus_comparer_agrees(project: str, tmp_path: Path) -> None:
+    """The corpus's own comparer (../shared/realworld/compare_partition.py) on our CLI output."""
+    folder = REALWORLD / project
+    files = json.loads((folder / "files.json").read_text(encoding="utf-8"))
+    root = str(folder / files["root_schematic"])
+    out = subprocess.run(
+        [sys.executable, "-m", "pullproof", "nets", root, "--json"],
+        capture_output=True,
+        text=True,
+        check=True,
+    )
+    nets = tmp_path / "nets.json"
+    nets.write_text(out.stdout, encoding="utf-8")
+    compare = [sys.executable, str(REALWORLD / "compare_partition.py")]
+    done = subprocess.run(
+        [*compare, str(folder / "oracle.json"), str(nets), "-q"], capture_output=True, text=True
+    )
+    assert done.returncode == 0, done.stdout + done.stderr

@@ -100,6 +100,13 @@ FIELDS: Mapping[str, FieldDoc] = MappingProxyType(
         "pullproof.i_ol": FieldDoc("open-drain driver", "guaranteed sink current at V_OL", "4mA"),
         "pullproof.v_ol": FieldDoc("open-drain driver", "output low voltage at I_OL", "0.4V"),
         "pullproof.i_off": FieldDoc("driver", "off-state leakage into the pin", "1uA"),
+        "pullproof.accept": FieldDoc(
+            "resistor (or a finding's part)",
+            "accept its verdict or finding: [what is accepted] reason",
+            "[marginal 100k 5%] strapped at power-up only",
+        ),
+        "pullproof.accept_by": FieldDoc("with pullproof.accept", "who accepted it", "A. Designer"),
+        "pullproof.accept_date": FieldDoc("with pullproof.accept", "when", "2031-05-04"),
     }
 )
 

@@ -3,9 +3,9 @@
 from __future__ import annotations
 
 from ..eseries import format_ohms
-from ..results import NetworkResult, ReviewResult
+from ..results import AcceptanceMark, Changes, Finding, NetworkResult, ReviewResult, Verdict
 
-__all__ = ["review_table"]
+__all__ = ["changes_table", "finding_line", "network_line", "review_table"]
 
 
 def _window(r: NetworkResult) -> str:
@@ -21,6 +21,22 @@ def _value(r: NetworkResult) -> str:
     return f"{format_ohms(res.ohms.magnitude('ohm'))} ±{tol * 100:g}%"
 
 
+def _verdict(verdict: Verdict, mark: AcceptanceMark | None) -> str:
+    word = verdict.value.upper()
+    if mark is None:
+        return word
+    return f"{word} (accepted)" if mark.holds else f"{word} (acceptance lapsed)"
+
+
+def _accepted_line(what: str, mark: AcceptanceMark) -> str:
+    a = mark.acceptance
+    who = ", ".join(x for x in (a.by, a.date) if x)
+    tail = f" ({who}; {a.where})" if who else f" ({a.where})"
+    if mark.holds:
+        return f"  {what}: {a.reason}{tail}\n"
+    return f"  {what}: acceptance lapsed, {mark.lapsed}{tail}\n"
+
+
 def _table(rows: list[list[str]]) -> str:
     widths = [max(len(row[i]) for row in rows) for i in range(len(rows[0]))]
     lines = []
@@ -32,9 +48,50 @@ def _table(rows: list[list[str]]) -> str:
     return "\n".join(lines) + "\n"
 
 
+def network_line(r: NetworkResult) -> str:
+    """One network as one line: parts, value, pull, verdict and reason."""
+    n = r.network
+    return (
+        f"{','.join(n.resistor.refs)} ({_value(r)}) on {n.net}, {n.direction.value} to "
+        f"{n.rail.name}: {_verdict(r.verdict, r.accepted)}, {r.reason}"
+    )
+
+
+def finding_line(f: Finding) -> str:
+    """One finding as the console prints it (without the severity column)."""
+    return f"{f.kind} {f.net} [{','.join(f.refs)}]: {f.message}"
+
+
+def _plural(n: int, word: str) -> str:
+    return f"{n} {word}{'' if n == 1 else 's'}"
+
+
+def changes_table(c: Changes) -> str:
+    """What changed since the older revision: one row per added, removed or changed network."""
+    out = [
+        f"changes since {c.old_root}: {len(c.added)} added, {len(c.removed)} removed, "
+        f"{len(c.changed)} changed, {c.unchanged} unchanged; "
+        f"{_plural(len(c.new_findings), 'new finding')}, {len(c.resolved_findings)} resolved\n"
+    ]
+    rows = [["change", "network", "verdict now", "what changed"]]
+    for ch in c.networks:
+        tag = "added" if ch.old is None else "removed" if ch.new is None else "changed"
+        now = ch.new.verdict.value.upper() if ch.new is not None else "-"
+        rows.append([tag, ch.key, now, "; ".join(ch.what)])
+    for f in c.new_findings:
+        rows.append(["new finding", f"{f.kind} on {f.net}", f.severity.value.upper(), f.message])
+    for f in c.resolved_findings:
+        rows.append(["resolved", f"{f.kind} on {f.net}", "-", f.message])
+    if len(rows) > 1:
+        out.append(_table(rows))
+    return "".join(out) + "\n"
+
+
 def review_table(result: ReviewResult) -> str:
     """Render the review for a terminal (plain text, no colour codes)."""
     out: list[str] = [f"pullproof review of {result.root}\n\n"]
+    if result.changes is not None:
+        out.append(changes_table(result.changes))
     order = sorted(result.networks, key=lambda r: (-r.verdict.rank, r.network.net))
     if order:
         rows = [["net", "resistor", "value", "pull", "window", "verdict", "reason"]]
@@ -47,7 +104,7 @@ def review_table(result: ReviewResult) -> str:
                     _value(r),
                     f"{n.direction.value} {n.rail.name}",
                     _window(r),
-                    r.verdict.value.upper(),
+                    _verdict(r.verdict, r.accepted),
                     r.reason,
                 ]
             )
@@ -57,17 +114,31 @@ def review_table(result: ReviewResult) -> str:
     if result.findings:
         out.append("\nfindings:\n")
         for f in sorted(result.findings, key=lambda f: (-f.severity.rank, f.net)):
-            refs = ",".join(f.refs)
-            out.append(
-                f"  {f.severity.value.upper():10} {f.kind:28} {f.net} [{refs}]: {f.message}\n"
-            )
+            word = _verdict(f.severity, f.accepted)
+            out.append(f"  {word:10} {finding_line(f)}\n")
     if result.skipped:
         out.append("\nnot judged as logic pulls:\n")
         for s in sorted(result.skipped, key=lambda s: s.ref):
             out.append(f"  {s.ref:6} {s.net}: {s.reason}\n")
+    marks = [
+        (f"{','.join(r.network.resistor.refs)} on {r.network.net} ({r.verdict.value})", r.accepted)
+        for r in order
+    ]
+    marks += [(f"{f.kind} on {f.net}", f.accepted) for f in result.findings]
+    accepted = [_accepted_line(what, m) for what, m in marks if m is not None]
+    if accepted:
+        out.append("\naccepted by a reviewer:\n")
+        out.extend(accepted)
+    if result.warnings:
+        out.append("\n")
+        out.extend(f"warning: {w}\n" for w in result.warnings)
     counts: dict[str, int] = {}
     for r in result.networks:
         counts[r.verdict.value] = counts.get(r.verdict.value, 0) + 1
     summary = ", ".join(f"{k} {v}" for k, v in sorted(counts.items())) or "none"
-    out.append(f"\n{len(result.networks)} networks ({summary}); {len(result.findings)} findings\n")
+    held = sum(1 for _, m in marks if m is not None and m.holds)
+    tail = f"; {held} accepted" if held else ""
+    out.append(
+        f"\n{len(result.networks)} networks ({summary}); {len(result.findings)} findings{tail}\n"
+    )
     return "".join(out)

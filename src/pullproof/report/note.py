@@ -14,7 +14,6 @@ import datetime
 import hashlib
 import os
 import re
-import tempfile
 from collections.abc import Iterable
 from dataclasses import dataclass
 from functools import lru_cache
@@ -30,6 +29,7 @@ from ..errors import PullproofError
 from ..network import Missing, PullNetwork
 from ..provenance import Sourced
 from ..results import Bound, BoundKind, Check, Finding, NetworkResult, ReviewResult, Verdict
+from ..textfile import write_report
 from .chart import chart_text, window_chart
 from .format import (
     format_margin,
@@ -386,7 +386,9 @@ def note_context(
     version: str = __version__,
 ) -> dict[str, Any]:
     """The template variables for ``result`` (also used by tests of custom templates)."""
-    taken: set[str] = {"summary", "findings", "cautions", "method", "files", "skipped"}
+    taken: set[str] = {
+        "summary", "findings", "cautions", "method", "files", "skipped", "changes", "warnings"
+    }  # fmt: skip
     order = sorted(result.networks, key=lambda n: (-n.verdict.rank, n.network.net))
     views = [_network_view(nr, _slug(nr.network.net, "net", taken)) for nr in order]
     by_net = {v.result.network.net: v.anchor for v in views}
@@ -395,11 +397,8 @@ def note_context(
         for f in sorted(result.findings, key=lambda f: (-f.severity.rank, f.net, f.kind))
     ]
     files = [_digest(label, path) for label, path in result.files]
-    rules = (
-        None
-        if result.rules_file is None
-        else _digest(os.path.basename(result.rules_file), result.rules_file)
-    )
+    rules = _rules_digest(result.rules_file)
+    marks = [n.accepted for n in result.networks] + [f.accepted for f in result.findings]
     return {
         "title": title,
         "author": author,
@@ -415,6 +414,27 @@ def note_context(
         "formulas": _formulas(result),
         "network_counts": _counts(n.verdict for n in result.networks),
         "mains_count": sum(1 for n in result.networks if n.network.mains_adjacent),
+        "gate": result.gate,
+        "accepted_count": sum(1 for m in marks if m is not None and m.holds),
+        "changes": _changes_view(result, by_net),
+    }
+
+
+def _rules_digest(path: str | None) -> FileDigest | None:
+    return None if path is None else _digest(os.path.basename(path), path)
+
+
+def _changes_view(result: ReviewResult, anchors: dict[str, str]) -> dict[str, Any] | None:
+    """The "Changes since" section: the comparison and the older revision's file digests."""
+    c = result.changes
+    if c is None:
+        return None
+    return {
+        "record": c,
+        "old_root": c.old_root,
+        "old_files": [_digest(label, path) for label, path in c.old_files],
+        "old_rules": _rules_digest(c.old_rules_file),
+        "anchors": anchors,
     }
 
 
@@ -491,30 +511,5 @@ def write_note(result: ReviewResult, path: str | os.PathLike[str], **kw: Any) ->
     those of :func:`render_note`. Raises :class:`PullproofError` when the file
     cannot be written.
     """
-    target = Path(path)
-    inputs = {os.path.realpath(p) for _, p in result.files}
-    if result.rules_file is not None:
-        inputs.add(os.path.realpath(result.rules_file))
-    if os.path.realpath(target) in inputs:
-        raise PullproofError(f"{target}: refusing to write the note over an input of the review")
     html = render_note(result, **kw)
-    folder = target.parent if str(target.parent) else Path(".")
-    tmp_name = ""
-    try:
-        with tempfile.NamedTemporaryFile(
-            "w",
-            encoding="utf-8",
-            dir=folder,
-            prefix=f".{target.name}.",
-            suffix=".tmp",
-            delete=False,
-        ) as tmp:
-            tmp_name = tmp.name
-            tmp.write(html)
-            tmp.flush()
-            os.fsync(tmp.fileno())
-        os.replace(tmp_name, target)
-    except OSError as e:
-        if tmp_name and os.path.exists(tmp_name):
-            os.unlink(tmp_name)
-        raise PullproofError(f"{target}: cannot write the note ({e.strerror or e})") from None
+    write_report(path, html, "note", result.inputs)

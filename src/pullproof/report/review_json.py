@@ -7,7 +7,17 @@ from typing import Any
 
 from ..network import Missing
 from ..provenance import Sourced
-from ..results import Bound, Check, Finding, NetworkResult, ReviewResult, Skipped, Term
+from ..results import (
+    AcceptanceMark,
+    Bound,
+    Changes,
+    Check,
+    Finding,
+    NetworkResult,
+    ReviewResult,
+    Skipped,
+    Term,
+)
 
 __all__ = ["SCHEMA", "review_json"]
 
@@ -33,6 +43,22 @@ def _term(t: Term) -> dict[str, Any]:
             "status": t.value.source.status.value,
             "reason": t.value.source.reason,
         },
+    }
+
+
+def _acceptance(mark: AcceptanceMark | None) -> dict[str, Any] | None:
+    if mark is None:
+        return None
+    a = mark.acceptance
+    return {
+        "status": "accepted" if mark.holds else "lapsed",
+        "lapsed": mark.lapsed or None,
+        "reason": a.reason,
+        "by": a.by or None,
+        "date": a.date or None,
+        "where": a.where,
+        "origin": a.origin,
+        "recorded": {"kind": a.kind or None, "value_ohms": a.value_ohms, "tolerance": a.tolerance},
     }
 
 
@@ -114,6 +140,7 @@ def _network(r: NetworkResult) -> dict[str, Any]:
         "bounds": [_bound(b) for b in r.bounds],
         "checks": [_check(c) for c in r.checks],
         "missing": [_missing(m) for m in r.missing],
+        "acceptance": _acceptance(r.accepted),
     }
 
 
@@ -124,11 +151,39 @@ def _finding(f: Finding) -> dict[str, Any]:
         "net": f.net,
         "refs": list(f.refs),
         "message": f.message,
+        "acceptance": _acceptance(f.accepted),
     }
 
 
 def _skipped(s: Skipped) -> dict[str, str]:
     return {"ref": s.ref, "net": s.net, "reason": s.reason}
+
+
+def _changes(c: Changes | None) -> dict[str, Any] | None:
+    if c is None:
+        return None
+
+    def pair(ch: Any) -> dict[str, Any]:
+        return {
+            "network": ch.key,
+            "net": (ch.new or ch.old).network.net,
+            "refs": list((ch.new or ch.old).network.resistor.refs),
+            "what": list(ch.what),
+            "verdict": None if ch.new is None else ch.new.verdict.value,
+            "old_verdict": None if ch.old is None else ch.old.verdict.value,
+        }
+
+    return {
+        "against": c.old_root,
+        "old_files": [{"file": label, "path": path} for label, path in c.old_files],
+        "old_rules_file": c.old_rules_file,
+        "added": [pair(ch) for ch in c.added],
+        "removed": [pair(ch) for ch in c.removed],
+        "changed": [pair(ch) for ch in c.changed],
+        "unchanged": c.unchanged,
+        "new_findings": [_finding(f) for f in c.new_findings],
+        "resolved_findings": [_finding(f) for f in c.resolved_findings],
+    }
 
 
 def review_json(result: ReviewResult) -> dict[str, Any]:
@@ -137,7 +192,10 @@ def review_json(result: ReviewResult) -> dict[str, Any]:
         "schema": SCHEMA,
         "root": result.root,
         "worst": result.worst.value,
+        "gate": result.gate.value,
+        "warnings": list(result.warnings),
         "networks": [_network(r) for r in result.networks],
         "findings": [_finding(f) for f in result.findings],
         "skipped": [_skipped(s) for s in result.skipped],
+        "changes": _changes(result.changes),
     }

@@ -9,29 +9,18 @@ and hierarchy are applied per instance by :mod:`pullproof.nets`.
 
 from __future__ import annotations
 
-import re
 from collections import defaultdict
-from collections.abc import Iterable
+from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 
+from .busnames import bus_members
 from .geometry import place_pin
 from .model import LibPin, LibSymbol, Point, SchematicFile, Wire
 from .reader import unescape
 
-__all__ = ["PowerPin", "SheetGraph", "bus_members", "sheet_graph"]
+__all__ = ["PowerPin", "SheetGraph", "sheet_graph"]
 
 _CELL = 5080  # µm; two grid pitches of 2.54 mm
-_VECTOR = re.compile(r"^(?P<prefix>.*?)\[(?P<a>\d+)\.\.(?P<b>\d+)\]$")
-
-
-def bus_members(name: str) -> tuple[str, ...]:
-    """The member names of a vector bus name ``A[0..3]`` → A0…A3; empty for a plain name."""
-    m = _VECTOR.match(name)
-    if m is None:
-        return ()
-    a, b = int(m["a"]), int(m["b"])
-    step = 1 if b >= a else -1
-    return tuple(f"{m['prefix']}{i}" for i in range(a, b + step, step))
 
 
 class _UnionFind:
@@ -127,8 +116,17 @@ def _unit_pins(lib: LibSymbol, unit: int, style: int) -> list[LibPin]:
     return [p for p in lib.pins if p.unit in (0, unit) and p.body_style in (0, style)]
 
 
-def sheet_graph(model: SchematicFile, libs: list[LibSymbol | None]) -> SheetGraph:
-    """Join the items of ``model``; ``libs`` gives each placement's library symbol."""
+def sheet_graph(
+    model: SchematicFile, libs: list[LibSymbol | None], units: Sequence[int] | None = None
+) -> SheetGraph:
+    """Join the items of ``model``; ``libs`` gives each placement's library symbol.
+
+    ``units`` gives the unit each placement stands for in one sheet instance (a sheet
+    used more than once may place another unit of a part than the one drawn); by
+    default the drawn ``(unit n)``. The pins, and so the points, are those of that unit.
+    """
+    if units is None:
+        units = [sym.unit for sym in model.symbols]
     wires = _Layer(model.wires)
     # Wire ends and junctions on another wire's interior join it.
     for seg in model.wires:
@@ -143,10 +141,10 @@ def sheet_graph(model: SchematicFile, libs: list[LibSymbol | None]) -> SheetGrap
 
     placed: list[list[tuple[LibPin, int]]] = []
     power: list[tuple[int, str, str, bool]] = []
-    for sym, lib in zip(model.symbols, libs, strict=True):
+    for sym, lib, unit in zip(model.symbols, libs, units, strict=True):
         row: list[tuple[LibPin, int]] = []
         if lib is not None:
-            for pin in _unit_pins(lib, sym.unit, sym.body_style):
+            for pin in _unit_pins(lib, unit, sym.body_style):
                 node = wires.point(place_pin(pin.at, sym.at, sym.rotation, sym.mirror))
                 row.append((pin, node))
                 if pin.type == "power_in" and lib.power:
