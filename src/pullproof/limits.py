@@ -19,6 +19,7 @@ __all__ = [
     "MAX_SHEET_DEPTH",
     "MAX_TEXT_FILE_BYTES",
     "MAX_TOKENS_PER_FILE",
+    "MAX_WIRE_DIRECTIONS",
     "InputPolicy",
 ]
 
@@ -37,6 +38,10 @@ MAX_BUS_MEMBERS = 4096
 # Sheet instances in the whole tree, and placed items (symbols, labels, sheet pins)
 # summed over every instance: a sheet used many times multiplies its items.
 MAX_INSTANCES = 10_000
+# Distinct directions of wires (and of buses) in one file. Every point that may lie on a
+# wire is looked up once per direction; real files use horizontal, vertical and 45°, and
+# a few other angles at most.
+MAX_WIRE_DIRECTIONS = 64
 MAX_SHEET_DEPTH = 50  # sheets within sheets; real designs nest a handful deep
 MAX_EXPANDED_ITEMS = 2_000_000
 # Lists and words in one file: real files hold about 150 000 per MB (1.5 million at the

@@ -54,8 +54,11 @@ _PROPS_NOT_FIELDS = frozenset({"Reference", "Value"})
 
 def natural_key(text: str) -> tuple[tuple[int, int | str], ...]:
     """Sort key that orders R2 before R10 and pin 2 before pin 10."""
+    # Odd items of the split are the digit runs; a run too long for int() sorts as text.
     return tuple(
-        (0, int(chunk)) if chunk.isdigit() else (1, chunk) for chunk in _DIGITS.split(text) if chunk
+        (0, int(chunk)) if i % 2 and len(chunk) <= 100 else (1, chunk)
+        for i, chunk in enumerate(_DIGITS.split(text))
+        if chunk
     )
 
 

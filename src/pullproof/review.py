@@ -69,6 +69,7 @@ class Selection:
         return self.refs is not None or bool(self.where)
 
 
+_MAX_REF_RANGE = 100_000  # more references than any schematic holds
 _RANGE = re.compile(r"^([A-Za-z#_]+)(\d+)-(?:\1)?(\d+)$")
 _REF = re.compile(r"^[A-Za-z#_][\w#.]*$")  # R3, SW_A2, #PWR01: what a reference looks like
 
@@ -92,9 +93,15 @@ def parse_ref_list(text: str) -> frozenset[str]:
                 )
             refs.add(item)
             continue
+        if max(len(m.group(2)), len(m.group(3))) > 9:
+            raise SelectionError(f"--ref: range {item!r} is too large; expected e.g. R7-R12")
         prefix, a, b = m.group(1), int(m.group(2)), int(m.group(3))
         if b < a:
             raise SelectionError(f"--ref: range {item!r} runs backwards; expected e.g. R7-R12")
+        if b - a >= _MAX_REF_RANGE:
+            raise SelectionError(
+                f"--ref: range {item!r} names more than {_MAX_REF_RANGE:,} references"
+            )
         refs.update(f"{prefix}{n}" for n in range(a, b + 1))
     return frozenset(refs)
 

@@ -278,12 +278,13 @@ def _extra_value(
             raise _fail(text, f"{_EXPECT_PCT} below 100 %", field, part)
         return "tolerance", Q_(frac, "")
     if m.group("pfrac"):
-        den = int(m.group("pd"))
+        den = Decimal(m.group("pd"))  # Decimal: any number of digits (int() stops at 4300)
         if den == 0:
             raise _fail(text, _EXPECT_P, field, part)
-        if int(m.group("pn")) == 0:
+        if Decimal(m.group("pn")) == 0:
             raise _fail(text, f"{_EXPECT_P} above zero", field, part)
-        return "power", Q_(int(m.group("pn")) / den, "W")
+        watts = _finite(Decimal(m.group("pn")) / den, text, _EXPECT_P, field, part)
+        return "power", Q_(watts, "W")
     if m.group("pow"):
         exp = {"": 0, "m": -3, "k": 3}[m.group("pprefix") or ""]
         watts = _finite(_decimal(m.group("pnum"), exp), text, _EXPECT_P, field, part)
@@ -411,9 +412,10 @@ def parse_power(text: str, *, field: str | None = None, part: str | None = None)
     if m is None:
         raise _fail(text, _EXPECT_P, field, part)
     if m.group("n") is not None:
-        if int(m.group("d")) == 0:
+        den = Decimal(m.group("d"))  # Decimal: any number of digits (int() stops at 4300)
+        if den == 0:
             raise _fail(text, _EXPECT_P, field, part)
-        return Q_(int(m.group("n")) / int(m.group("d")), "W")
+        return Q_(_finite(Decimal(m.group("n")) / den, text, _EXPECT_P, field, part), "W")
     exp = {"": 0, "m": -3, "k": 3}[m.group("prefix") or ""]
     return Q_(_finite(_decimal(m.group("num"), exp), text, _EXPECT_P, field, part), "W")
 

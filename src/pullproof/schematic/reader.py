@@ -47,9 +47,9 @@ _ESCAPES = MappingProxyType(
     }
 )
 _ESCAPE_RE = re.compile(r"\{(" + "|".join(_ESCAPES) + r")\}")
-_SUB_SYMBOL = re.compile(r"^(?P<base>.*)_(?P<unit>\d+)_(?P<style>\d+)$")
+_SUB_SYMBOL = re.compile(r"^(?P<base>.*)_(?P<unit>\d{1,9})_(?P<style>\d{1,9})$")
 _LABEL_KINDS = frozenset({"label", "global_label", "hierarchical_label"})
-_VECTOR_RANGE = re.compile(r"\[(\d+)\.\.(\d+)\]$")
+_VECTOR_RANGE = re.compile(r"\[(\d+)\.\.(\d+)\]")
 # The first list of a schematic, and the heads of the format's other files (named, never
 # quoted: nothing of a file that is not a schematic is shown).
 _HEAD = re.compile(r"\s*\(\s*(?P<head>[^\s()\"]{1,40})")
@@ -115,13 +115,19 @@ class _Reader:
         return self.coordinate(node, 0), self.coordinate(node, 1)
 
     def name(self, node: Node) -> str:
-        """An unescaped label or sheet-pin name; a vector range is bounded."""
+        """An unescaped label or sheet-pin name; the members a bus name stands for are bounded.
+
+        Every member a bus name expands to comes from a range ``[a..b]`` in it (or is one
+        word of a group, bounded by the name's length), so the ranges are counted.
+        """
         text = unescape(self.text(node))
-        m = _VECTOR_RANGE.search(text)
-        if m is not None and abs(int(m.group(2)) - int(m.group(1))) >= MAX_BUS_MEMBERS:
-            raise self.error(
-                node, f"vector {excerpt(text)} has more than {MAX_BUS_MEMBERS} members"
-            )
+        members = 0
+        for a, b in _VECTOR_RANGE.findall(text):
+            members += abs(int(b) - int(a)) + 1 if max(len(a), len(b)) <= 9 else MAX_BUS_MEMBERS
+            if members > MAX_BUS_MEMBERS:
+                raise self.error(
+                    node, f"bus {excerpt(text)} has more than {MAX_BUS_MEMBERS} members"
+                )
         return text
 
     def at(self, node: Node) -> tuple[Point, float]:
