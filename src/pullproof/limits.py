@@ -35,15 +35,17 @@ MAX_TEXT_FILE_BYTES = 1 * MB
 MAX_COORDINATE_MM = 10_000
 # A vector label A[0..N] of more members than any real bus (a 1024-bit bus is rare).
 MAX_BUS_MEMBERS = 4096
-# Sheet instances in the whole tree, and placed items (symbols, labels, sheet pins)
-# summed over every instance: a sheet used many times multiplies its items.
+# Sheet instances in the whole tree, and the items connectivity handles per instance
+# (placed symbols with their pins and instance paths, labels, sheet pins, wires, junctions)
+# summed over every instance: a sheet used many times multiplies its items. Real designs
+# hold about 3 500 per MB of schematic text, times the instances of each sheet.
 MAX_INSTANCES = 10_000
 # Distinct directions of wires (and of buses) in one file. Every point that may lie on a
 # wire is looked up once per direction; real files use horizontal, vertical and 45°, and
 # a few other angles at most.
 MAX_WIRE_DIRECTIONS = 64
 MAX_SHEET_DEPTH = 50  # sheets within sheets; real designs nest a handful deep
-MAX_EXPANDED_ITEMS = 2_000_000
+MAX_EXPANDED_ITEMS = 1_000_000
 # Lists and words in one file: real files hold about 150 000 per MB (1.5 million at the
 # size limit); a file of nothing but "()" would hold a million per MB and take five times
 # as long to read as real text of that size.

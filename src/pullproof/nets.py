@@ -267,6 +267,11 @@ class _Builder:
 
     def make_parts(self) -> list[Part]:
         parts = []
+        by_ref: dict[str, list[tuple[str, NetMember]]] = defaultdict(
+            list
+        )  # one pass, not one per part
+        for (r, number), m in self.members.items():
+            by_ref[r].append((number, m))
         for ref, units in self.parts.items():
             fields: dict[str, str] = {}
             pins: dict[str, PartPin] = {}
@@ -276,9 +281,8 @@ class _Builder:
                     if k not in _PROPS_NOT_FIELDS:
                         fields.setdefault(k, v)
                 placements.append(Placement(inst.file, inst.path, unit, sym.span, sym.uuid))
-            for (r, number), m in self.members.items():
-                if r == ref:
-                    pins[number] = PartPin(number, m.name, m.type)
+            for number, m in by_ref.get(ref, ()):
+                pins[number] = PartPin(number, m.name, m.type)
             first, inst0, _ = units[0]
             parts.append(
                 Part(

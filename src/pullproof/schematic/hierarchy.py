@@ -48,8 +48,15 @@ class Hierarchy:
 
 
 def _items(model: SchematicFile) -> int:
-    """Placed items of one file that every instance of it repeats."""
-    return 1 + len(model.symbols) + len(model.labels) + sum(1 + len(b.pins) for b in model.sheets)
+    """The work every instance of one file repeats: placed symbols with their pins and
+    instance paths, labels, sheet pins, wires and junctions."""
+    libs = model.lib_symbols
+    symbols = sum(
+        1 + len(sym.instances) + (len(lib.pins) if (lib := libs.get(sym.lib_key)) else 0)
+        for sym in model.symbols
+    )
+    sheets = sum(1 + len(b.pins) for b in model.sheets)
+    return 1 + symbols + sheets + len(model.labels) + len(model.wires) + len(model.junctions)
 
 
 def _inside(path: str, folder: str) -> bool:
@@ -69,6 +76,7 @@ class _Loader:
         self.absolute: dict[str, str] = {}
         self.instances: list[Instance] = []
         self.expanded = 0
+        self.sizes: dict[str, int] = {}
 
     def read(self, path: Path, display: str) -> tuple[SchematicFile, str]:
         """Read one file within the limits; :class:`Unreadable` says why not."""
@@ -137,11 +145,14 @@ class _Loader:
         return key
 
     def visit(self, key: str, inst: Instance, stack: tuple[str, ...], where: Location) -> None:
+        """Add ``inst`` and, depth first, the instances of the sheets it places."""
         if len(stack) > MAX_SHEET_DEPTH:
             raise SchematicError(f"sheets nested more than {MAX_SHEET_DEPTH} deep", where)
         if len(self.instances) >= MAX_INSTANCES:
             raise SchematicError(f"more than {MAX_INSTANCES:,} sheet instances", where)
-        self.expanded += _items(self.models[key])
+        if key not in self.sizes:
+            self.sizes[key] = _items(self.models[key])
+        self.expanded += self.sizes[key]
         if self.expanded > MAX_EXPANDED_ITEMS:
             raise SchematicError(
                 f"the sheet instances place more than {MAX_EXPANDED_ITEMS:,} items in all", where
