@@ -297,20 +297,6 @@ def test_failing_replace_leaves_every_original(
     assert sorted(p.name for p in demo.parent.iterdir() if p.name.startswith(".")) == []
 
 
-def test_read_only_file_is_left_alone(
-    demo: Path, monkeypatch: pytest.MonkeyPatch, capsys: pytest.CaptureFixture[str]
-) -> None:
-    sensors = demo.parent / "sensors.kicad_sch"
-    sensors.chmod(0o444)
-    # an administrator may write anything; judge by the mode bits as any other user would
-    monkeypatch.setattr(os, "access", lambda p, mode: bool(os.stat(p).st_mode & 0o200))
-    before = _texts(demo.parent)
-    assert main(["annotate", str(demo), "--write"]) == 2
-    err = capsys.readouterr().err.strip()
-    assert err == f"pullproof: {sensors.resolve()}: the file is read-only; nothing written"
-    assert _texts(demo.parent) == before
-
-
 def test_file_changed_since_reading_is_not_overwritten(demo: Path) -> None:
     plan = plan_annotation(demo, today=DAY)
     inputs = demo.parent / "inputs.kicad_sch"
