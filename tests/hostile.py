@@ -21,8 +21,8 @@ from pullproof.cli import main
 __all__ = ["Hang", "bounded", "digests", "raw_controls", "run"]
 
 
-class Hang(Exception):
-    """A case ran past its time bound."""
+class Hang(BaseException):
+    """A case ran past its time bound (a BaseException, so no `except Exception` hides it)."""
 
 
 @contextlib.contextmanager

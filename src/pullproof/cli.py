@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import argparse
 import contextlib
+import functools
 import signal
 import sys
 from collections.abc import Callable, Iterator, Sequence
@@ -239,6 +240,7 @@ def _against_option(p: argparse.ArgumentParser) -> None:
     )
 
 
+@functools.cache  # built once: a parser is not changed by parsing
 def _build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="pullproof",

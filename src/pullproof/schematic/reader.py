@@ -123,7 +123,8 @@ class _Reader:
         text = unescape(self.text(node))
         members = 0
         for a, b in _VECTOR_RANGE.findall(text):
-            members += abs(int(b) - int(a)) + 1 if max(len(a), len(b)) <= 9 else MAX_BUS_MEMBERS
+            wide = max(len(a), len(b)) > 9  # more digits than any bus: too many, unread
+            members += MAX_BUS_MEMBERS + 1 if wide else abs(int(b) - int(a)) + 1
             if members > MAX_BUS_MEMBERS:
                 raise self.error(
                     node, f"bus {excerpt(text)} has more than {MAX_BUS_MEMBERS} members"
