@@ -6,9 +6,14 @@ README's "Performance" section::
     python tests/benchmark.py            # synthetic boards of 50, 200 and 800 pull networks
     python tests/benchmark.py --sizes 100 --repeat 5
 
+    python tests/benchmark.py --limits   # the input limits: copy into "Robustness"
+
 Goals (README): a real 500 kB schematic is read and connected in under 1 s and
 reviewed in under 2 s; a synthetic board with 800 pull networks reviews in under 15 s;
-peak Python heap stays under 300 MB for all of them.
+peak Python heap stays under 300 MB for all of them. At the input limits (README
+"Robustness"): a file above the size limit is refused in under a second with a few MB of
+memory, whatever its size; a wire across the whole sheet range costs what a short one
+costs; reading stays within the time and memory the README states for the limits.
 """
 
 from __future__ import annotations
@@ -67,11 +72,77 @@ def measure(fn: Callable[[], Any], repeat: int) -> tuple[float, float]:
     return best, peak / 1e6
 
 
+def _quiet(argv: list[str]) -> int:
+    import contextlib
+    import io
+
+    from pullproof.cli import main as cli
+
+    with contextlib.redirect_stdout(io.StringIO()), contextlib.redirect_stderr(io.StringIO()):
+        return cli(argv)
+
+
+def _wires(folder: Path, name: str, length_mm: float, points: int) -> Path:
+    """One wire ``length_mm`` long (diagonal when long), with ``points`` labels along it."""
+    b = SchematicBuilder()
+    half = length_mm / 2
+    b.wire((-half, -half), (half, half))
+    step = length_mm / (points + 1)
+    for i in range(points):
+        at = -half + (i + 1) * step
+        b.label(f"N{i}", at=(round(at, 3), round(at, 3)))
+    return b.write(folder / name)
+
+
+def limit_cases(folder: Path) -> list[tuple[str, int, Callable[[], Any]]]:
+    """(case, bytes, what to run) at and beyond the input limits."""
+    from pullproof.limits import DEFAULT_MAX_FILE_BYTES, MAX_COORDINATE_MM, MAX_TOKENS_PER_FILE
+
+    big = folder / "big.kicad_sch"
+    with open(big, "wb") as fh:  # 50 MB that starts like a schematic (sparse file)
+        fh.write(b"(kicad_sch (version 20231120)")
+        fh.truncate(50_000_000)
+    dense = folder / "dense.kicad_sch"  # lists and words at the token limit
+    body = " (a)" * ((MAX_TOKENS_PER_FILE - 4) // 3)
+    dense.write_text(f"(kicad_sch (version 20231120){body})", encoding="utf-8")
+    at_limit = synthetic_board(1, folder)  # a real-like board just below the file limit
+    n = int(DEFAULT_MAX_FILE_BYTES / at_limit.stat().st_size)
+    at_limit = synthetic_board(max(1, int(n * 0.97)), folder)
+    short = _wires(folder, "short.kicad_sch", 25.4, 2000)
+    long = _wires(folder, "long.kicad_sch", 2 * MAX_COORDINATE_MM - 1, 2000)
+    return [
+        ("a 50 MB file, refused", 50_000_000, lambda: _quiet(["nets", str(big)])),
+        (f"{MAX_TOKENS_PER_FILE:,} tokens of '(a)'", dense.stat().st_size,
+         lambda: _quiet(["nets", str(dense)])),
+        ("a real-like board at the file limit: nets", at_limit.stat().st_size,
+         lambda: _quiet(["nets", str(at_limit)])),
+        ("the same board: review", at_limit.stat().st_size,
+         lambda: _quiet(["review", str(at_limit)])),
+        ("a 25 mm wire with 2000 labels on it", short.stat().st_size,
+         lambda: _quiet(["nets", str(short)])),
+        ("a 28 m diagonal with 2000 labels on it", long.stat().st_size,
+         lambda: _quiet(["nets", str(long)])),
+    ]  # fmt: skip
+
+
+def limits_table(repeat: int) -> None:
+    with tempfile.TemporaryDirectory() as tmp:
+        rows = [(name, size, *measure(fn, repeat)) for name, size, fn in limit_cases(Path(tmp))]
+    print("| case | bytes | time | heap |")
+    print("|---|---|---|---|")
+    for name, size, t, m in rows:
+        print(f"| {name} | {size:,} | {t:.2f} s | {m:.0f} MB |")
+
+
 def main(argv: list[str] | None = None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--sizes", type=int, nargs="*", default=[50, 200, 800])
     ap.add_argument("--repeat", type=int, default=3)
+    ap.add_argument("--limits", action="store_true", help="measure the input limits instead")
     args = ap.parse_args(argv)
+    if args.limits:
+        limits_table(args.repeat)
+        return 0
     rows: list[tuple[str, int, float, float, float, float]] = []
     with tempfile.TemporaryDirectory() as tmp:
         cases: list[tuple[str, Path]] = [
