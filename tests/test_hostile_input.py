@@ -167,6 +167,14 @@ CASES: list[tuple[str, Callable[[Path], None], list[str], str]] = [
     ("part library is a FIFO", lambda f: os.mkfifo(f / "p.toml"),
      ["review", ROOT, "--parts", "p.toml"],
      "pullproof: cannot read part library p.toml: not a regular file (a named pipe)"),
+    ("gate on a symlink loop", lambda f: os.symlink("loop.kicad_sch", f / "loop.kicad_sch"),
+     ["gate", "loop.kicad_sch"],
+     "pullproof: cannot read loop.kicad_sch: Too many levels of symbolic links"),
+    ("note onto a device", _nothing, ["note", ROOT, "-o", "/dev/null"],
+     "pullproof: /dev/null: cannot write the note (not a regular file (a device))"),
+    ("SARIF log onto a FIFO", lambda f: os.mkfifo(f / "log.sarif"),
+     ["review", ROOT, "--sarif", "log.sarif"],
+     "pullproof: log.sarif: cannot write the SARIF log (not a regular file (a named pipe))"),
     # --- numbers that overflow, coordinates off any sheet, absurd vectors
     ("coordinate 1e308", _edit("inputs.kicad_sch", "(at 50.8", "(at 1e308"), ["review", ROOT],
      f"inputs.kicad_sch:58:34: coordinate 1e+308 mm is outside the sheet "

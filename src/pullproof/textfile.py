@@ -12,6 +12,7 @@ never quoted.
 
 from __future__ import annotations
 
+import contextlib
 import errno
 import os
 import stat
@@ -139,6 +140,10 @@ def write_report(path: str | os.PathLike[str], text: str, what: str, inputs: Ite
     target = Path(path)
     if os.path.realpath(target) in {os.path.realpath(p) for p in inputs}:
         raise PullproofError(f"{target}: refusing to write the {what} over an input of the review")
+    with contextlib.suppress(OSError):  # a missing target is the usual case
+        kind = _kind(os.stat(target).st_mode)
+        if kind is not None:  # never replace a device, a FIFO or a folder with a report
+            raise PullproofError(f"{target}: cannot write the {what} ({kind})")
     folder = target.parent if str(target.parent) else Path(".")
     tmp_name = ""
     try:
