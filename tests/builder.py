@@ -100,6 +100,7 @@ class SchematicBuilder:
     uuid: str = field(default_factory=lambda: str(_uuid.uuid4()))
     _libs: dict[str, tuple[tuple[Pin, ...], str]] = field(default_factory=dict)
     _placed: list[_Placed] = field(default_factory=list)
+    _by_ref: dict[str, list[_Placed]] = field(default_factory=dict)  # pin_point's index
     _items: list[str] = field(default_factory=list)
     _v6_table: list[tuple[str, str, int]] = field(default_factory=list)
     _v6_adopted: list[tuple[str, str, int]] = field(default_factory=list)
@@ -129,21 +130,21 @@ class SchematicBuilder:
         when that instance places another unit than the drawn ``unit`` (sheets used twice).
         """
         self._libs.setdefault(lib_id, (tuple(pins), power))
-        self._placed.append(
-            _Placed(
-                ref,
-                lib_id,
-                at,
-                rot,
-                mirror,
-                unit,
-                value or lib_id.split(":")[-1],
-                dict(fields or {}),
-                str(_uuid.uuid4()),
-                dict(instances or {}),
-                dnp,
-            )
+        placed = _Placed(
+            ref,
+            lib_id,
+            at,
+            rot,
+            mirror,
+            unit,
+            value or lib_id.split(":")[-1],
+            dict(fields or {}),
+            str(_uuid.uuid4()),
+            dict(instances or {}),
+            dnp,
         )
+        self._placed.append(placed)
+        self._by_ref.setdefault(ref, []).append(placed)
         return self
 
     def resistor(
@@ -180,8 +181,8 @@ class SchematicBuilder:
         Computed with complex numbers (independently of pullproof's geometry module):
         flip Y, turn by −90° per quarter turn, then mirror about the anchor.
         """
-        for p in self._placed:
-            if p.ref != ref or (unit is not None and p.unit != unit):
+        for p in self._by_ref.get(ref, ()):
+            if unit is not None and p.unit != unit:
                 continue
             for pin in self._libs[p.lib_id][0]:
                 if pin.number == number and pin.unit in (0, p.unit):
