@@ -26,7 +26,6 @@ import sys
 import tempfile
 import time
 import tracemalloc
-from collections.abc import Callable
 from pathlib import Path
 
 HERE = Path(__file__).resolve().parent
