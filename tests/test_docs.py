@@ -60,6 +60,7 @@ def test_the_robustness_section_states_the_limits_in_force(readme: str) -> None:
         f"{limits.DEFAULT_MAX_TOTAL_BYTES // 1_000_000} MB (`--max-total-size MB`)",
         f"| {limits.MAX_TEXT_FILE_BYTES // 1_000_000} MB each |",
         f"| {limits.MAX_TOKENS_PER_FILE:,} |",
+        f"| {limits.MAX_TOKENS_TOTAL:,} |",
         f"| ±{limits.MAX_COORDINATE_MM:,} mm |",
         f"| {limits.MAX_BUS_MEMBERS} |",
         f"| {limits.MAX_INSTANCES:,} |",

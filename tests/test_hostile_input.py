@@ -19,7 +19,7 @@ import pytest
 
 from conftest import FIXTURES
 from hostile import digests, run
-from pullproof.limits import MAX_BUS_MEMBERS, MAX_COORDINATE_MM
+from pullproof.limits import MAX_BUS_MEMBERS, MAX_COORDINATE_MM, TokenBudget
 from pullproof.nets import build_circuit
 
 DEMO = FIXTURES / "demo"
@@ -322,6 +322,23 @@ def test_the_environment_never_reaches_an_error_message(tmp_path: Path) -> None:
         )  # fmt: skip
         assert (proc.returncode, proc.stderr, proc.stdout) == (2, line + "\n", "")
         assert "s3cr3t" not in proc.stderr + proc.stdout
+
+
+def test_lists_and_words_are_counted_over_all_files(
+    project: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    """A smaller budget for the whole review stands in for six million lists and words."""
+    from pullproof.schematic import hierarchy
+
+    monkeypatch.setattr(hierarchy, "TokenBudget", lambda: TokenBudget(total=9000))
+    before = digests(project)
+    code, out, err = run("nets", ROOT)
+    assert (code, out) == (2, "")
+    assert err == (
+        "mains.kicad_sch:21:31: the files read so far and this one hold more than 9,000 lists "
+        "and words\n"
+    )
+    assert digests(project) == before
 
 
 def test_a_bad_size_option_is_a_usage_error(project: Path) -> None:

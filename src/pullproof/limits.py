@@ -19,8 +19,10 @@ __all__ = [
     "MAX_SHEET_DEPTH",
     "MAX_TEXT_FILE_BYTES",
     "MAX_TOKENS_PER_FILE",
+    "MAX_TOKENS_TOTAL",
     "MAX_WIRE_DIRECTIONS",
     "InputPolicy",
+    "TokenBudget",
 ]
 
 MB = 1_000_000
@@ -46,10 +48,13 @@ MAX_INSTANCES = 10_000
 MAX_WIRE_DIRECTIONS = 64
 MAX_SHEET_DEPTH = 50  # sheets within sheets; real designs nest a handful deep
 MAX_EXPANDED_ITEMS = 1_000_000
-# Lists and words in one file: real files hold about 150 000 per MB (1.5 million at the
-# size limit); a file of nothing but "()" would hold a million per MB and take five times
-# as long to read as real text of that size.
-MAX_TOKENS_PER_FILE = 2_000_000
+# Lists and words in one file: real files hold 150 000 to 210 000 per MB (up to 2.1 million
+# at the size limit); a file of nothing but "(a)" holds 750 000 per MB, each three times as
+# costly to read as a word of real text.
+MAX_TOKENS_PER_FILE = 3_000_000
+# … and in all files of one review: a project of real text at the total size limit holds
+# about 5 million.
+MAX_TOKENS_TOTAL = 6_000_000
 
 
 @dataclass(frozen=True)
@@ -67,3 +72,18 @@ class InputPolicy:
     def __post_init__(self) -> None:
         if self.max_file_bytes <= 0 or self.max_total_bytes <= 0:
             raise ValueError("size limits must be positive")
+
+
+class TokenBudget:
+    """The lists and words one review may still read: per file, and across all its files."""
+
+    def __init__(self, total: int = MAX_TOKENS_TOTAL) -> None:
+        self.total = total
+        self.left = total
+
+    def for_file(self) -> int:
+        """How many the next file may hold."""
+        return min(MAX_TOKENS_PER_FILE, self.left)
+
+    def spend(self, count: int) -> None:
+        self.left -= count

@@ -14,7 +14,13 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from ..errors import Location, SchematicError, SourceText, excerpt
-from ..limits import MAX_EXPANDED_ITEMS, MAX_INSTANCES, MAX_SHEET_DEPTH, InputPolicy
+from ..limits import (
+    MAX_EXPANDED_ITEMS,
+    MAX_INSTANCES,
+    MAX_SHEET_DEPTH,
+    InputPolicy,
+    TokenBudget,
+)
 from ..textfile import Unreadable
 from .model import SchematicFile, SheetBlock
 from .reader import read_path
@@ -71,6 +77,7 @@ class _Loader:
         self.display_root = os.fspath(root)
         self.root_path = Path(root)
         self.total = 0
+        self.tokens = TokenBudget()
         self.models: dict[str, SchematicFile] = {}
         self.texts: dict[str, SourceText] = {}
         self.absolute: dict[str, str] = {}
@@ -82,7 +89,7 @@ class _Loader:
         """Read one file within the limits; :class:`Unreadable` says why not."""
         budget = min(self.policy.max_file_bytes, self.policy.max_total_bytes - self.total)
         try:
-            model, text = read_path(path, display, max(budget, 0))
+            model, text = read_path(path, display, max(budget, 0), self.tokens)
         except Unreadable as exc:
             if exc.too_large and budget < self.policy.max_file_bytes:
                 limit = self.policy.max_total_bytes / 1e6

@@ -13,7 +13,7 @@ from pathlib import Path
 from types import MappingProxyType
 
 from ..errors import SchematicError, SourceText, excerpt
-from ..limits import DEFAULT_MAX_FILE_BYTES, MAX_BUS_MEMBERS, MAX_COORDINATE_MM
+from ..limits import DEFAULT_MAX_FILE_BYTES, MAX_BUS_MEMBERS, MAX_COORDINATE_MM, TokenBudget
 from ..sexpr import Node, parse
 from ..textfile import decode_utf8, read_regular
 from .geometry import to_um
@@ -290,7 +290,7 @@ class _Reader:
         )
 
 
-def read_text(text: str, name: str) -> SchematicFile:
+def read_text(text: str, name: str, budget: TokenBudget | None = None) -> SchematicFile:
     """Read schematic text.
 
     :param text: the file's text.
@@ -300,7 +300,7 @@ def read_text(text: str, name: str) -> SchematicFile:
     """
     src = SourceText(name, text)
     _check_head(src)
-    return _Reader(src).read(parse(text, name))
+    return _Reader(src).read(parse(text, name, budget))
 
 
 def _check_head(src: SourceText) -> None:
@@ -319,7 +319,10 @@ def _check_head(src: SourceText) -> None:
 
 
 def read_path(
-    path: Path, name: str, max_bytes: int = DEFAULT_MAX_FILE_BYTES
+    path: Path,
+    name: str,
+    max_bytes: int = DEFAULT_MAX_FILE_BYTES,
+    budget: TokenBudget | None = None,
 ) -> tuple[SchematicFile, str]:
     """Read a schematic file; return the model and the text (for later splicing).
 
@@ -330,4 +333,4 @@ def read_path(
     text = decode_utf8(read_regular(path, max_bytes), name, SchematicError, "file")
     if text.startswith("\ufeff"):
         text = " " + text[1:]  # same length, so spans still index the file's text
-    return read_text(text, name), text
+    return read_text(text, name, budget), text
