@@ -8,7 +8,6 @@ user gave is byte-identical afterwards.
 from __future__ import annotations
 
 import hashlib
-import shutil
 from collections.abc import Callable
 from pathlib import Path
 
@@ -19,14 +18,6 @@ from pullproof.cli import main
 
 DEMO = FIXTURES / "demo"
 ROOT = "irrigation.kicad_sch"
-
-
-@pytest.fixture
-def project(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> Path:
-    """A copy of the demo project; the test runs inside it so messages use short names."""
-    shutil.copytree(DEMO, tmp_path / "p")
-    monkeypatch.chdir(tmp_path / "p")
-    return tmp_path / "p"
 
 
 def _digests(folder: Path) -> dict[str, str]:

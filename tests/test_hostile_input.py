@@ -22,19 +22,11 @@ from hostile import digests, run
 from pullproof.limits import MAX_BUS_MEMBERS, MAX_COORDINATE_MM, TokenBudget
 from pullproof.nets import build_circuit
 
-DEMO = FIXTURES / "demo"
+DEMO = FIXTURES / "demo"  # the `project` fixture (conftest.py) is a copy of it
 ROOT = "irrigation.kicad_sch"
 MAINS = "mains.kicad_sch"
 AT_MAINS = f"{ROOT}:61:128"  # the mains sheet's Sheetfile property in the root
 PARTS = "pullproof-parts.toml"
-
-
-@pytest.fixture
-def project(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> Path:
-    """A copy of the demo project; the test runs inside it so messages use short names."""
-    shutil.copytree(DEMO, tmp_path / "p")
-    monkeypatch.chdir(tmp_path / "p")
-    return tmp_path / "p"
 
 
 def _edit(name: str, old: str, new: str) -> Callable[[Path], None]:
@@ -89,23 +81,22 @@ def _nothing(folder: Path) -> None:
     pass
 
 
+def _placing(folder: Path, name: str, child: str, count: int) -> None:
+    """A schematic ``name`` placing sheet file ``child`` ``count`` times."""
+    blocks = "".join(
+        f'\n (sheet (at 0 0) (uuid "{name}{i}") (property "Sheetname" "S{i}")'
+        f' (property "Sheetfile" "{child}"))'
+        for i in range(count)
+    )
+    text = f'(kicad_sch (version 20231120) (uuid "{name}"){blocks})\n'
+    (folder / name).write_text(text, encoding="utf-8")
+
+
 def _many_instances(folder: Path) -> None:
     """A root placing sheet A 101 times, A placing B 100 times: 10 202 instances."""
     (folder / "b.kicad_sch").write_text('(kicad_sch (version 20231120) (uuid "b"))\n', "utf-8")
-    blocks = "".join(
-        f'\n (sheet (at 0 0) (uuid "s{i}") (property "Sheetname" "B{i}")'
-        f' (property "Sheetfile" "b.kicad_sch"))'
-        for i in range(100)
-    )
-    (folder / "a.kicad_sch").write_text(f'(kicad_sch (version 20231120) (uuid "a"){blocks})\n',
-                                        "utf-8")  # fmt: skip
-    blocks = "".join(
-        f'\n (sheet (at 0 0) (uuid "t{i}") (property "Sheetname" "A{i}")'
-        f' (property "Sheetfile" "a.kicad_sch"))'
-        for i in range(101)
-    )
-    (folder / "many.kicad_sch").write_text(f'(kicad_sch (version 20231120) (uuid "r"){blocks})\n',
-                                           "utf-8")  # fmt: skip
+    _placing(folder, "a.kicad_sch", "b.kicad_sch", 100)
+    _placing(folder, "many.kicad_sch", "a.kicad_sch", 101)
 
 
 def _env_file(folder: Path) -> None:

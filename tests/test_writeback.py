@@ -19,7 +19,7 @@ from pathlib import Path
 
 import pytest
 
-from conftest import FIXTURES, REALWORLD
+from conftest import REALWORLD
 from hostile import digests, run
 from pullproof import writeback
 from pullproof.annotate import AnnotateError, apply_annotation, plan_annotation
@@ -29,10 +29,8 @@ ROOT = "irrigation.kicad_sch"
 
 
 @pytest.fixture
-def demo(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> Path:
-    shutil.copytree(FIXTURES / "demo", tmp_path / "p")
-    monkeypatch.chdir(tmp_path / "p")
-    return tmp_path / "p"
+def demo(project: Path) -> Path:
+    return project
 
 
 def _temporaries(folder: Path) -> list[str]:
