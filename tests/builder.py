@@ -90,6 +90,7 @@ class _Placed:
     uuid: str
     instances: dict[str, str | tuple[str, int]]
     dnp: bool
+    on_board: bool = True
 
 
 @dataclass
@@ -123,8 +124,10 @@ class SchematicBuilder:
         instances: dict[str, str | tuple[str, int]] | None = None,
         dnp: bool = False,
         power: str = "",
+        on_board: bool = True,
     ) -> SchematicBuilder:
-        """Place one unit of a part. ``power`` ("global"/"local") marks a power symbol library.
+        """Place one unit of a part. ``power`` ("global"/"local") marks a power symbol library;
+        ``on_board=False`` writes the part as excluded from the board.
 
         ``instances`` maps sheet-instance uuid paths to a reference, or to (reference, unit)
         when that instance places another unit than the drawn ``unit`` (sheets used twice).
@@ -142,6 +145,7 @@ class SchematicBuilder:
             str(_uuid.uuid4()),
             dict(instances or {}),
             dnp,
+            on_board,
         )
         self._placed.append(placed)
         self._by_ref.setdefault(ref, []).append(placed)
@@ -291,7 +295,8 @@ class SchematicBuilder:
         dnp = " (dnp yes)" if p.dnp else (" (dnp no)" if self.version > V6 else "")
         return (
             f"(symbol (lib_id {_q(p.lib_id)}) (at {_mm(p.at[0])} {_mm(p.at[1])} {p.rot}){mirror}"
-            f" (unit {p.unit}) ({style} 1) (in_bom yes) (on_board yes){dnp}"
+            f" (unit {p.unit}) ({style} 1) (in_bom yes) (on_board {'yes' if p.on_board else 'no'})"
+            f"{dnp}"
             f" (uuid {_q(p.uuid)}){text}{inst})"
         )
 

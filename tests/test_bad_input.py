@@ -117,7 +117,7 @@ CASES: list[tuple[str, Callable[[Path], None], list[str], str]] = [
      _replace(PARTS, 'internal_pull = ["30k", "50k"]', 'internal_pull = ["30k", "40k", "50k"]'),
      ["review", ROOT],
      f"{PARTS}:27:1: field 'internal_pull' of [part.GENERIC-MCU33]: cannot read "
-     "\"['30k', '40k', '50k']\"; expected a range [\"30k\", \"50k\"]"),
+     "\"['30k', '40k', '50k']\"; expected a range [\"30k\", \"50k\"] or \"none\""),
     ("parts: schmitt flag as text",
      _replace(PARTS, "schmitt_inputs = true", 'schmitt_inputs = "no"'), ["review", ROOT],
      f"{PARTS}:26:1: field 'schmitt_inputs' of [part.GENERIC-MCU33]: cannot read 'no'; "

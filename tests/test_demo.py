@@ -207,8 +207,8 @@ def window(result: ReviewResult, net: str) -> tuple[float | None, float | None]:
     [
         # 74LS IIL 0.4 mA per input, VIL 0.8 V (handbook 74LS table, confirmed), two inputs.
         ("/inputs/LID_SW", 1, (0.8 - 0.1) / (2 * 0.4e-3)),
-        # resistor power: 5.25 V² / (0.1 W × 50 %) (0603 rating and derating, common practice)
-        ("/inputs/LID_SW", 0, 5.25**2 / 0.05),
+        # contact rating: 5.25 V / 100 mA, the interlock's stated rating (Ohm's law)
+        ("/inputs/LID_SW", 0, 5.25 / 0.1),
         # wetting current: V_min / I_wet = 3.3 V × 0.97 / 1 mA (common practice)
         ("/FLOAT_TANK", 1, 3.3 * 0.97 / 1e-3),
         # UM10204 §7.1 eq. (2): (VDD − VOL) / 3 mA with VOL = 0.4 V (confirmed)
@@ -272,3 +272,13 @@ def test_markup_in_schematic_text_is_escaped(tmp_path: Path) -> None:
     assert hostile not in html
     assert "KEY&lt;b&gt;&amp;" in html
     assert check_note_html(html, result) == []
+
+
+def test_a_rating_read_from_the_size_is_an_assumed_soft_limit(demo_result: ReviewResult) -> None:
+    # 5.25 V² / (0.1 W × 50 %): the 0603 size's generic rating (common practice) stands in
+    # for the fitted resistor's, so the limit is soft and says so
+    lid = next(nr for nr in demo_result.networks if nr.network.net == "/inputs/LID_SW")
+    power = next(b for b in lid.bounds if b.constraint == "resistor-power")
+    assert power.ohms == pytest.approx(5.25**2 / 0.05, rel=1e-3)
+    assert not power.hard and power.title.endswith("(assumed)")
+    assert power.assumed == ("assumed rating of size 0603",)

@@ -135,7 +135,7 @@ def test_enabled_internal_pull_field_error() -> None:
         enabled_internal_pull(part)
     assert str(info.value) == (
         "field 'pullproof.internal_pull' of U1: cannot read 'sideways 4k7'; "
-        "expected [up|down] MIN..MAX, e.g. up 30k..50k"
+        "expected [up|down] MIN..MAX, e.g. up 30k..50k, or none"
     )
 
 

@@ -6,7 +6,7 @@ from pathlib import Path
 
 import pytest
 
-from pullproof.circuit import Part
+from pullproof.circuit import Part, PartPin
 from pullproof.errors import ValueParseError
 from pullproof.families import PartKind, PartLibrary, family_from_name, load_part_library
 from pullproof.families.match import FIELDS, resolve_part
@@ -72,10 +72,51 @@ def test_not_a_logic_name(text: str) -> None:
         ("U4", "LM358", "Amplifier_Operational:LM358", PartKind.OPAMP),
         ("R9", "4k7", "", PartKind.RESISTOR),  # reference prefix only
         ("X1", "thing", "", PartKind.OTHER),
+        # the symbol's own name decides, never the library nickname before ':'
+        ("R4", "10k", "rp2040_board:R_0402", PartKind.RESISTOR),
+        ("C7", "100n", "MCU_Project:C_Small", PartKind.CAPACITOR),
+        ("U5", "RP2040", "beehive_parts:RP2040", PartKind.MCU),
+        ("RN1", "4x10k", "scale_lib:R_Array", PartKind.RESISTOR),
+        ("RV1", "10k", "Device:R_Potentiometer", PartKind.POTENTIOMETER),
+        ("VR2", "KNOB", "Device:R_POT", PartKind.POTENTIOMETER),
+        ("TH1", "10k NTC", "Device:Thermistor_NTC", PartKind.SENSOR),
+        ("Y1", "12MHz", "Device:Crystal_GND24", PartKind.OTHER),  # not a capacitor
+        ("U8", "SN74HC14N", "hive:SN74HC14N", PartKind.LOGIC),
+        ("U9", "RP2350B", "any_library:ESP32x-80", PartKind.MCU),  # Value names the part
     ],
 )
 def test_classify(ref: str, value: str, lib_id: str, kind: PartKind) -> None:
     assert resolve_part(_part(ref, value, lib_id), PartLibrary(), RULES).kind is kind
+
+
+def _pins(*names: str) -> tuple[PartPin, ...]:
+    return tuple(PartPin(str(n), name, "input") for n, name in enumerate(names, 1))
+
+
+@pytest.mark.parametrize(
+    ("pins", "kind"),
+    [
+        # an inverting and a non-inverting input: an amplifier or comparator (common practice)
+        (("+", "-", "OUT", "V+", "V-"), PartKind.OPAMP),
+        (("IN+", "IN\u2212", "OUT"), PartKind.OPAMP),
+        (("+INA", "-INA", "OUTA"), PartKind.OPAMP),
+        (("INP", "INN", "VOUT"), PartKind.OPAMP),
+        (("A", "B", "Y", "VCC", "GND"), PartKind.OTHER),
+        (("V+", "V-", "OUT"), PartKind.OTHER),  # supply pins are not inputs
+    ],
+)
+def test_classify_by_pins(pins: tuple[str, ...], kind: PartKind) -> None:
+    part = Part(ref="U3", value="XQ9000", lib_id="greenhouse:XQ9000", sheet="/", fields={},
+                pins=_pins(*pins))  # fmt: skip
+    assert resolve_part(part, PartLibrary(), RULES).kind is kind
+
+
+def test_few_pins_are_not_a_logic_ic() -> None:
+    # a two-pin header whose part number ends in 4020 is no CD4020 counter: a logic IC needs
+    # a supply, a ground, an input and an output (common practice)
+    part = Part(ref="H8", value="PWR", lib_id="shop:22-28-4020", sheet="/", fields={},
+                pins=_pins("1", "2"))  # fmt: skip
+    assert resolve_part(part, PartLibrary(), RULES).kind is PartKind.OTHER
 
 
 def test_resistor_from_value_and_footprint() -> None:
@@ -87,10 +128,11 @@ def test_resistor_from_value_and_footprint() -> None:
     # 0603 → 0.1 W / 50 V, generic chip table (REFERENCES §6: common practice)
     assert info.power is not None and info.power.magnitude("W") == 0.1
     assert info.working_voltage is not None and info.working_voltage.magnitude("V") == 50.0
-    assert info.power.source.origin is Origin.DEFAULT
-    # no Tolerance field and none in the Value: the rules default (E24, 5 %)
+    # a size's generic rating stands in for the fitted part's: an assumption
+    assert info.power.source.origin is Origin.ASSUMED
+    # no Tolerance field and none in the Value: the rules default (E24, 5 %), assumed
     assert info.tolerance.magnitude("") == 0.05
-    assert info.tolerance.source.origin is Origin.DEFAULT
+    assert info.tolerance.source.origin is Origin.ASSUMED
 
 
 def test_tolerance_field_beats_value_text() -> None:
@@ -168,7 +210,7 @@ def test_example_part_library() -> None:
 def test_switch_defaults_are_marked() -> None:
     info = resolve_part(_part("SW1", "SW_Push", "Switch:SW_Push"), PartLibrary(), RULES)
     wet = info.ratings.get("wetting")
-    assert wet is not None and wet.source.origin is Origin.DEFAULT and wet.source.reason
+    assert wet is not None and wet.source.origin is Origin.ASSUMED and wet.source.reason
     info = resolve_part(
         _part("SW2", "SW_Push", "Switch:SW_Push", **{"pullproof.wetting": "1mA"}),
         PartLibrary(),
@@ -190,7 +232,7 @@ def test_bad_part_library(tmp_path: Path) -> None:
         load_part_library(path)
     assert str(info.value) == (
         f"{path}:2:1: field 'kind' of [part.X]: cannot read 'gadget'; expected one of resistor, "
-        "capacitor, switch, relay, optocoupler, LED, diode, transistor, logic IC, "
+        "potentiometer, sensor, capacitor, switch, relay, optocoupler, LED, diode, transistor, logic IC, "
         "microcontroller, connector, op-amp, other"
     )
 

@@ -21,7 +21,9 @@ def test_defaults_without_a_file(tmp_path: Path) -> None:
     assert rules.file == "" and rules.series == "E24" and rules.policy == "centre"
     tol = rules.get("resistor.tolerance")
     assert tol.magnitude("") == 0.05
-    assert tol.source.origin is Origin.DEFAULT and tol.source.reason
+    # it stands in for the fitted resistor's tolerance: an assumption, not a project choice
+    assert tol.source.origin is Origin.ASSUMED and tol.source.reason
+    assert rules.get("margin").source.origin is Origin.DEFAULT
 
 
 def test_every_key_has_a_reason() -> None:

@@ -12,7 +12,9 @@ from pullproof.errors import ValueParseError
 from pullproof.units import (
     Q_,
     parse_capacitance,
+    parse_capacitor_text,
     parse_current,
+    parse_element_value,
     parse_percent,
     parse_power,
     parse_resistance,
@@ -101,6 +103,94 @@ def test_resistor_extras(
     if watts is not None:
         assert_allclose(r.power, Q_(watts, "W"))
     assert r.size == size
+
+
+@pytest.mark.parametrize(
+    ("text", "ohms", "tol", "watts", "size"),
+    [
+        # spellings seen on real boards' Value fields
+        ("10k/R0603", 10000.0, None, None, "0603"),  # size after "/", R prefix: common practice
+        ("10k_0402", 10000.0, None, None, "0402"),  # size after "_": common practice
+        ("4K7_C0402", 4700.0, None, None, "0402"),  # IEC 60062 code; C size prefix: common practice
+        ("2.2k_1%", 2200.0, 0.01, None, ""),  # tolerance after "_": common practice
+        ("49,9R", 49.9, None, None, ""),  # decimal comma (ISO 80000-1 §7.3.2), R = Ω (IEC 60062)
+        ("4,7k", 4700.0, None, None, ""),  # decimal comma (ISO 80000-1 §7.3.2)
+        ("10k, 1%", 10000.0, 0.01, None, ""),  # a comma before a space separates: common practice
+        ("30mR/333mW", 0.030, None, 0.333, ""),  # m = 10^-3 (SI Brochure table 7), R = Ω
+        ("49.9R 0.1%", 49.9, 0.001, None, ""),  # R as the ohm sign after a decimal: common practice
+    ],
+)
+def test_board_spellings(
+    text: str, ohms: float, tol: float | None, watts: float | None, size: str
+) -> None:
+    r = parse_resistor_text(text, part="R1")
+    assert_allclose(r.ohms, Q_(ohms, "ohm"), rtol=1e-12)
+    assert (r.tolerance is None) == (tol is None)
+    if tol is not None:
+        assert r.tolerance is not None
+        assert r.tolerance.to("").magnitude == pytest.approx(tol)
+    assert (r.power is None) == (watts is None)
+    if watts is not None:
+        assert_allclose(r.power, Q_(watts, "W"))
+    assert r.size == size
+
+
+@pytest.mark.parametrize(
+    ("text", "farads", "volts", "dielectric", "size"),
+    [
+        ("470pF/50V", 470e-12, 50.0, "", ""),  # SI prefixes (SI Brochure table 7)
+        ("100n/16V/X7R", 100e-9, 16.0, "X7R", ""),  # EIA-198 class code, from memory
+        ("22pF 50V C0G 0402", 22e-12, 50.0, "C0G", "0402"),  # EIA-198 class code, from memory
+        ("10µF 6V3", 10e-6, 6.3, "", ""),  # IEC 60062 letter as decimal marker (6V3)
+        ("10u 0805", 10e-6, None, "", "0805"),  # common practice
+        ("4n7", 4.7e-9, None, "", ""),  # IEC 60062 letter as decimal marker
+    ],
+)
+def test_capacitor_values(
+    text: str, farads: float, volts: float | None, dielectric: str, size: str
+) -> None:
+    c = parse_capacitor_text(text, part="C1")
+    assert_allclose(c.farads, Q_(farads, "F"), rtol=1e-12)
+    assert (c.voltage is None) == (volts is None)
+    if volts is not None:
+        assert_allclose(c.voltage, Q_(volts, "V"))
+    assert (c.dielectric, c.size) == (dielectric, size)
+
+
+@pytest.mark.parametrize(
+    ("text", "ohms"),
+    [
+        ("10k", 10000.0),  # one element's value: IEC 60062 / SI, common practice
+        ("4x10k", 10000.0),  # count × element value: common practice
+        ("8 × 4K7", 4700.0),  # IEC 60062 code after a count: common practice
+        ("CAT16 4x10K 5%", 10000.0),  # a part string holding one resistance: common practice
+    ],
+)
+def test_array_values(text: str, ohms: float) -> None:
+    assert_allclose(parse_element_value(text, part="RN1").ohms, Q_(ohms, "ohm"), rtol=1e-12)
+
+
+@pytest.mark.parametrize("text", ["CAT16 10k 4k7", "4D03WGJ0103T5E", "R_Array", ""])
+def test_array_value_not_guessed(text: str) -> None:
+    # two resistances, or none, are never guessed
+    with pytest.raises(ValueParseError, match="a resistor array's value such as 4x10k"):
+        parse_element_value(text, part="RN1")
+
+
+@pytest.mark.parametrize(
+    ("text", "expected"),
+    [
+        ("100nX", "then a rated voltage (50V), dielectric (X7R), tolerance (10%) or size (0603)"),
+        ("100n 16V 25V", "with at most one voltage"),
+        ("-1nF", "(not negative)"),
+        ("100", "expected a capacitance such as 100n, 4n7 or 100 nF"),
+    ],
+)
+def test_bad_capacitor_values(text: str, expected: str) -> None:
+    with pytest.raises(ValueParseError) as info:
+        parse_capacitor_text(text, part="C4")
+    assert str(info.value).startswith(f"field 'Value' of C4: cannot read {text!r}; expected")
+    assert expected in str(info.value)
 
 
 def test_resistor_tcr() -> None:
@@ -226,10 +316,11 @@ P_EXP = "expected a power such as 0.1W, 1/4W or 100mW"
             parse_resistor_text,
             "Value",
             "R3",
-            "4,7k",
+            "4,7,1k",
             R_EXP
             + ", then after the resistance: a tolerance (1%), power (0.1W), size (0603) or TCR",
         ),
+        (parse_resistor_text, "Value", "R3", "10k_R9999", R_EXP + R_THEN),
         (
             parse_resistor_text,
             "Value",

@@ -243,7 +243,9 @@ def apply_acceptances(
         n = r.network
         marks = []
         for i, a in enumerate(acceptances):
-            if a.kind in FINDING_KINDS or not _matches(a, n.resistor.refs, n.net):
+            # an array element is named "RN1 (1–8)"; an acceptance may name it or just "RN1"
+            refs = (*n.resistor.refs, *(e.ref for e in n.resistor.members))
+            if a.kind in FINDING_KINDS or not _matches(a, refs, n.net):
                 continue
             if r.verdict is Verdict.PASS:
                 used.setdefault(i, "pass")

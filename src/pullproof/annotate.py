@@ -166,30 +166,53 @@ def _fields(result: NetworkResult, stamp: str) -> tuple[tuple[str, str], ...]:
     )
 
 
+def _shared_note(pairs: list[tuple[str, NetworkResult]]) -> str:
+    """Why one symbol gets the fields of only one of several networks ("" when it has one).
+
+    Two cases put several judged resistors on one symbol: a sheet used twice (R105 and R5
+    are one symbol) and a resistor array drawn as one symbol (RN1 (1–2), RN1 (1–3) …).
+    The worst verdict's fields are written, so the symbol never looks better than its
+    worst element or instance.
+    """
+    labels = sorted({r for r, _ in pairs})
+    if len(labels) < 2:
+        return ""
+    worst_ref, _ = pairs[0]
+    verdicts = {v.verdict for _, v in pairs}
+    array = any("(" in r for r in labels)
+    why = "elements of one resistor array" if array else "sheet used twice"
+    if len(verdicts) > 1:
+        listed = ", ".join(f"{r} {v.verdict.value}" for r, v in sorted(pairs))
+        return (
+            f"{'/'.join(labels)} share one symbol ({why}) with different verdicts "
+            f"({listed}); writing the worse, from {worst_ref}"
+        )
+    if array:  # one symbol, several elements: say whose window and reason it carries
+        return (
+            f"{'/'.join(labels)} share one symbol ({why}), all {pairs[0][1].verdict.value}; "
+            f"writing the fields of {worst_ref}"
+        )
+    return ""
+
+
 def _targets(
     circuit: Circuit, result: ReviewResult, select: Selection, stamp: str
 ) -> dict[tuple[str, tuple[int, int]], _Target]:
     """Map each placed symbol to the fields it gets; a shared symbol takes the worst."""
     judged: dict[tuple[str, tuple[int, int]], list[tuple[str, NetworkResult]]] = {}
     for net in result.networks:
-        for ref in net.network.resistor.refs:
-            part = circuit.part(ref)
+        for el in net.network.resistor.members:
+            part = circuit.part(el.ref)
             for pl in part.placements if part is not None else ():
-                judged.setdefault((pl.file, pl.span), []).append((ref, net))
+                if el.unit and pl.unit != el.unit:
+                    continue  # an array element drawn as its own unit gets its own fields
+                judged.setdefault((pl.file, pl.span), []).append((el.label, net))
     out: dict[tuple[str, tuple[int, int]], _Target] = {}
     for key, pairs in judged.items():
         pairs.sort(key=lambda p: (-p[1].verdict.rank, p[0]))
         refs = "/".join(sorted({r for r, _ in pairs}))
-        worst_ref, worst = pairs[0]
-        note = ""
-        verdicts = {v.verdict for _, v in pairs}
-        if len(verdicts) > 1:
-            listed = ", ".join(f"{r} {v.verdict.value}" for r, v in sorted(pairs))
-            note = (
-                f"{refs} share one symbol (sheet used twice) with different verdicts "
-                f"({listed}); writing the worse, from {worst_ref}"
-            )
-        out[key] = _Target(key[0], key[1], refs, _fields(worst, stamp), note)
+        worst = pairs[0][1]
+        out[key] = _Target(key[0], key[1], refs, _fields(worst, stamp), _shared_note(pairs))
     # Stale results on resistors no longer judged are removed, so no old verdict lingers.
     for key, target in _removals(circuit, select).items():
         out.setdefault(key, target)
@@ -432,7 +455,8 @@ def plan_annotation(
     if remove:
         targets = _removals(circuit, select)
     else:
-        result = review(root, rules=rules, parts=parts, select=select, circuit=circuit)
+        result = review(root, rules=rules, parts=parts, select=select, circuit=circuit,
+                        hierarchy=hier)  # fmt: skip
         stamp = f"pullproof {__version__}, {(today or _dt.date.today()).isoformat()}"
         targets = _targets(circuit, result, select, stamp)
     by_file: dict[str, list[_Target]] = {}

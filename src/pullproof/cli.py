@@ -28,6 +28,7 @@ __all__ = ["main"]
 if TYPE_CHECKING:
     from .circuit import Circuit
     from .results import ReviewResult
+    from .schematic.hierarchy import Hierarchy
 
 Handler = Callable[[argparse.Namespace], int]
 _MAX_ERROR_CHARS = 400  # an error is one readable line, whatever text it quotes
@@ -65,7 +66,9 @@ def _cmd_families(args: argparse.Namespace) -> int:
 _FAIL_ON = {"marginal": 1, "incomplete": 2, "fail": 3}
 
 
-def _review_from(args: argparse.Namespace, circuit: Circuit | None = None) -> ReviewResult:
+def _review_from(
+    args: argparse.Namespace, circuit: Circuit | None = None, hierarchy: Hierarchy | None = None
+) -> ReviewResult:
     from dataclasses import replace
 
     from .compare import compare_reviews
@@ -82,6 +85,7 @@ def _review_from(args: argparse.Namespace, circuit: Circuit | None = None) -> Re
         parts=args.parts or (),
         select=select,
         circuit=circuit,
+        hierarchy=hierarchy,
         policy=policy,
     )
     against = getattr(args, "against", None)
@@ -96,14 +100,16 @@ def _review_from(args: argparse.Namespace, circuit: Circuit | None = None) -> Re
 
 
 def _cmd_review(args: argparse.Namespace) -> int:
-    from .nets import build_circuit
+    from .nets import circuit_from_hierarchy
     from .report.console import review_table
     from .report.review_json import review_json
     from .report.sarif import sarif_log
+    from .schematic.hierarchy import load_hierarchy
     from .textfile import write_report
 
-    circuit = build_circuit(args.root, _policy(args))
-    result = _review_from(args, circuit)
+    hierarchy = load_hierarchy(args.root, _policy(args))  # read once: the SARIF log needs the
+    circuit = circuit_from_hierarchy(hierarchy, args.root)  # circuit, the review both
+    result = _review_from(args, circuit, hierarchy)
     if args.sarif:
         write_report(args.sarif, json_text(sarif_log(result, circuit)) + "\n", "SARIF log",
                      result.inputs)  # fmt: skip

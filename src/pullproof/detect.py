@@ -14,8 +14,9 @@ from collections.abc import Mapping
 from dataclasses import dataclass
 
 from .circuit import Circuit, Net, Part
+from .elements import Element
 from .errors import ValueParseError
-from .families.match import PartInfo, PartKind
+from .families.match import PartInfo, PartKind, ResistorInfo
 from .network import (
     CapacitorOnNet,
     Direction,
@@ -31,6 +32,7 @@ from .network import (
 )
 from .provenance import Origin, Provenance, Sourced, Status
 from .rules import RailSpec, Rules
+from .supplies import RailTie, supply_nets
 from .topology import PinOnNet, PullSite
 from .units import Q_, parse_resistance
 
@@ -52,8 +54,9 @@ class UnknownRail:
     refs: tuple[str, ...]
 
 
-def _default(value: object, name: str, reason: str, status: Status = Status.DEFAULT) -> Sourced:
-    return Sourced(value, Provenance(Origin.DEFAULT, name, status, reason))
+def _assumed(value: object, name: str, reason: str, status: Status = Status.DEFAULT) -> Sourced:
+    """A driver rating the part does not state: a limit resting on it is soft."""
+    return Sourced(value, Provenance(Origin.ASSUMED, name, status, reason))
 
 
 def _derived(value: object, where: str) -> Sourced:
@@ -73,12 +76,12 @@ def enabled_internal_pull(part: Part) -> tuple[tuple[Sourced, Sourced], Directio
         ValueParseError: the field cannot be read.
     """
     text = part.field("pullproof.internal_pull")
-    if text is None:
+    if text is None or text.strip().lower() == "none":  # "none": the pin has no internal pull
         return None
     m = _PULL_RANGE.match(text)
     if m is None:
         raise ValueParseError(
-            text, expected="[up|down] MIN..MAX, e.g. up 30k..50k",
+            text, expected="[up|down] MIN..MAX, e.g. up 30k..50k, or none",
             field="pullproof.internal_pull", part=part.ref,
         )  # fmt: skip
     where = Provenance(Origin.FIELD, f"field 'pullproof.internal_pull' on {part.ref}", Status.USER)
@@ -96,31 +99,50 @@ def _magnitude(value: Sourced | None) -> Sourced | None:
 class Resolver:
     """Resolve pull sites of one circuit with one set of rules and part data."""
 
-    def __init__(self, circuit: Circuit, infos: Mapping[str, PartInfo], rules: Rules) -> None:
+    def __init__(
+        self,
+        circuit: Circuit,
+        infos: Mapping[str, PartInfo],
+        rules: Rules,
+        elements: Mapping[str, Element] | None = None,
+    ) -> None:
         self.circuit = circuit
         self.infos = infos
         self.rules = rules
         self.nets = {n.name: n for n in circuit.nets}
+        self.supplies = supply_nets(circuit)
+        self.elements: Mapping[str, Element] = elements or {}
+
+    def element(self, label: str) -> Element:
+        """The resistor a label names (``R3``, ``RN1 (1–8)``) as part and pins."""
+        return self.elements.get(label) or Element(label, ("1", "2"))
+
+    def resistor_info(self, label: str) -> ResistorInfo | None:
+        return self.infos[self.element(label).ref].resistor
 
     # ------------------------------------------------------------------ rails
     def rail_of(self, net: Net) -> RailSpec | None:
-        """The rail a net stands for, from its name or any label on it (None: a signal)."""
-        if not net.power and not net.labels:
-            return None
-        for name in (net.name, *net.labels):
+        """The rail a net stands for (None: a signal): a rules entry, a power symbol, a whole
+        name that is a supply name, or a supply function (it feeds power pins)."""
+        for name in (net.name, *net.labels) if net.power or net.labels else ():
             spec = self.rules.rail(name)
             if spec is not None:
                 return spec
+        name = net.name.rsplit("/", 1)[-1]
         if net.power:
             # A power symbol names a supply even when its name states no voltage (VLOGIC):
             # a rail of unknown voltage, which the rules file can describe.
-            name = net.name.rsplit("/", 1)[-1]
             return RailSpec(name, None, None, None)
+        why = self.supplies.get(net.name, "")
+        if why:
+            # Named like a signal or not at all, but it powers something: a supply of
+            # unknown voltage, never a logic level.
+            return RailSpec(name, None, None, None, inferred=why)
         return None
 
-    def rail_key(self, net: Net) -> tuple[str, bool] | None:
+    def rail_key(self, net: Net) -> RailTie | None:
         spec = self.rail_of(net)
-        return None if spec is None else (spec.name, spec.ground)
+        return None if spec is None else RailTie(spec.name, spec.ground, not spec.inferred)
 
     def _rail(self, name: str) -> Rail | None:
         spec = self.rules.rail(name)
@@ -135,7 +157,7 @@ class Resolver:
     # ------------------------------------------------------------------ resistors
     def _resistor(self, refs: tuple[str, ...], missing: list[Missing]) -> PullResistor | None:
         """Combine parallel pulls into one record (worst tolerance, TCR and rating)."""
-        infos = [self.infos[r].resistor for r in refs]
+        infos = [self.resistor_info(r) for r in refs]
         if any(i is None or i.ohms is None for i in infos):
             for r, i in zip(refs, infos, strict=True):
                 if i is None or i.ohms is None:
@@ -163,7 +185,9 @@ class Resolver:
             if any(v is None for v in volts)
             else min((v for v in volts if v is not None), key=lambda s: s.magnitude("V"))
         )
-        return PullResistor(refs, ohms, tol, tcr, power, wv, size=first.size)
+        elements = tuple(self.element(r) for r in refs)
+        arrays = elements if any(e.array for e in elements) else ()
+        return PullResistor(refs, ohms, tol, tcr, power, wv, size=first.size, elements=arrays)
 
     # ------------------------------------------------------------------ inputs
     def _supply_of(self, part: Part) -> RailSpec | None:
@@ -187,7 +211,7 @@ class Resolver:
         missing: list[Missing] = list(info.missing)
         series = None
         if pin.via:
-            res = self.infos[pin.via].resistor
+            res = self.resistor_info(pin.via)
             series = res.ohms if res is not None else None
         model = info.inputs
         if model is not None and not any(
@@ -278,17 +302,17 @@ class Resolver:
                 vce_sat=r.get("vce_sat"),
             )  # fmt: skip
         if info.kind is PartKind.TRANSISTOR:
-            i_ol = fields["i_ol"] or _default(
-                _TRANSISTOR_SINK[0], "default transistor sink current", "small-signal "
+            i_ol = fields["i_ol"] or _assumed(
+                _TRANSISTOR_SINK[0], "assumed transistor sink current", "small-signal "
                 "transistors sink far more than a pull draws", Status.COMMON_PRACTICE
             )  # fmt: skip
-            v_ol = fields["v_ol"] or _default(
-                _TRANSISTOR_SINK[1], "default transistor saturation voltage",
+            v_ol = fields["v_ol"] or _assumed(
+                _TRANSISTOR_SINK[1], "assumed transistor saturation voltage",
                 "small-signal saturation is below 0.4 V at these currents",
                 Status.COMMON_PRACTICE,
             )  # fmt: skip
-            i_off = fields["i_off"] or _default(
-                _TRANSISTOR_LEAK, "default transistor off-state leakage",
+            i_off = fields["i_off"] or _assumed(
+                _TRANSISTOR_LEAK, "assumed transistor off-state leakage",
                 "small-signal transistors leak well under 1 µA when off", Status.COMMON_PRACTICE,
             )  # fmt: skip
             return DriverOnNet(pin.ref, pin.pin, "transistor", i_ol, v_ol, i_off)
@@ -298,9 +322,10 @@ class Resolver:
     def _capacitor(self, pin: PinOnNet, missing: list[Missing]) -> CapacitorOnNet | None:
         farads = self.infos[pin.ref].ratings.get("capacitance")
         if farads is None:
-            missing.append(
-                Missing(f"capacitance of {pin.ref}", pin.ref, "write the Value, e.g. 100n")
-            )
+            part = self.circuit.part(pin.ref)
+            text = part.value if part is not None else ""
+            hint = f"its Value {text!r} is not a capacitance; write e.g. 100n or 470pF/50V"
+            missing.append(Missing(f"capacitance of {pin.ref}", pin.ref, hint))
             return None
         far = self._far_rail(pin.far_net)
         return CapacitorOnNet(pin.ref, farads, far.name if far else pin.far_net)

@@ -14,6 +14,7 @@ import math
 from collections.abc import Iterable, Mapping
 
 from . import eseries
+from .assumed import assumed_band, nominal_meets, soften
 from .constraints import BUILTIN, Constraint, ConstraintPluginError
 from .constraints._common import band, dedupe, eng, pct
 from .errors import RulesError
@@ -91,7 +92,7 @@ def _run(reg: Mapping[str, Constraint], network: PullNetwork) -> list[Bound | Ch
     out: list[Bound | Check] = []
     for cid, c in reg.items():
         if id(c) in builtins:
-            out.extend(c(network))
+            out.extend(soften(item) for item in c(network))
             continue
         try:
             found = tuple(c(network))
@@ -104,7 +105,7 @@ def _run(reg: Mapping[str, Constraint], network: PullNetwork) -> list[Bound | Ch
                 raise ConstraintPluginError(
                     f"constraint {cid!r} returned {type(item).__name__}; expected Bound or Check"
                 )
-        out.extend(found)
+        out.extend(soften(item) for item in found)
     return out
 
 
@@ -153,6 +154,10 @@ def _judge(
             f"but {hi_b.title.lower()} allows at most {eng(_ohms(hi_b), 'Ω')}."
         )
     hard_bad = [b for b in bounds if b.hard and _violated(b, r_lo, r_hi)]
+    band_rests_on = assumed_band(res)
+    nominal = res.ohms.magnitude("ohm")
+    band_only = [b for b in hard_bad if band_rests_on and nominal_meets(b, nominal)]
+    hard_bad = [b for b in hard_bad if b not in band_only]
     if hard_bad:
         b = max(hard_bad, key=lambda x: _shortfall(x, r_lo, r_hi))
         side = "below the minimum" if b.kind is BoundKind.MIN else "above the maximum"
@@ -167,6 +172,16 @@ def _judge(
         m = missing[0]
         more = f" (and {len(missing) - 1} more)" if len(missing) > 1 else ""
         return Verdict.INCOMPLETE, f"Cannot judge yet: {m.what} is unknown{more}; {m.hint}."
+    if band_only:
+        # The nominal value meets the limit; only the assumed tolerance or TCR carries the
+        # band across it, and an assumption never makes a hard fail.
+        b = band_only[0]
+        side = "below the minimum" if b.kind is BoundKind.MIN else "above the maximum"
+        return Verdict.MARGINAL, (
+            f"{fitted}, {side} of {eng(_ohms(b), 'Ω')} from {b.title.lower()} ({b.constraint}) "
+            f"only through the assumed {' and '.join(band_rests_on)}; state the part's "
+            "Tolerance and TCR to decide."
+        )
     soft_bad = [b for b in bounds if not b.hard and _violated(b, r_lo, r_hi)]
     soft_bad_checks = [c for c in checks if not c.hard and c.ok is False]
     if soft_bad:

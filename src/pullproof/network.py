@@ -12,6 +12,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from enum import StrEnum
 
+from .elements import Element
 from .provenance import Sourced
 
 __all__ = [
@@ -57,7 +58,12 @@ class Rail:
 @dataclass(frozen=True)
 class PullResistor:
     """One fitted pull resistor (parallel pulls are combined by detection into one record
-    with ``refs`` listing them all)."""
+    with ``refs`` listing them all).
+
+    ``refs`` name the resistors as reports do (``R3``, ``RN1 (1–8)`` for an element of a
+    resistor array); ``elements`` holds the same resistors as parts and pins, in order
+    (empty when every entry of ``refs`` is a plain two-pin resistor's reference).
+    """
 
     refs: tuple[str, ...]
     ohms: Sourced  # nominal resistance (combined when parallel)
@@ -66,6 +72,12 @@ class PullResistor:
     power_rating: Sourced | None  # W at the rating temperature
     working_voltage: Sourced | None  # V, the package's limiting element voltage
     size: str = ""  # package size code, e.g. "0603", when known
+    elements: tuple[Element, ...] = ()
+
+    @property
+    def members(self) -> tuple[Element, ...]:
+        """Each resistor as a part reference plus pins (plain resistors: pins 1 and 2)."""
+        return self.elements or tuple(Element(r, ("1", "2")) for r in self.refs)
 
 
 @dataclass(frozen=True)

@@ -23,6 +23,9 @@ class Origin(StrEnum):
     PART_LIBRARY = "part-library"  # a user part library entry (TOML)
     RULES = "rules"  # a key of the project rules file
     DEFAULT = "default"  # a documented default, with its reason
+    # a documented default standing in for a rating or requirement nothing states (a part's
+    # rating, the wiring's capacitance): a limit resting on it is soft and shown as assumed
+    ASSUMED = "assumed"
     SCHEMATIC = "schematic"  # derived from the drawing (rail name, topology)
     DERIVED = "derived"  # computed from other sourced numbers
 

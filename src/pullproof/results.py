@@ -138,6 +138,7 @@ class Bound:
     relax: str = ""  # what would relax this bound, for empty-window advice
     corner: str = ""  # which corner was worst, e.g. "VCC = 4.5 V, 85 °C"
     missing: tuple[Missing, ...] = ()
+    assumed: tuple[str, ...] = ()  # assumed values it rests on (then it is soft)
 
     @property
     def evaluated(self) -> bool:
@@ -159,6 +160,7 @@ class Check:
     source: str = ""
     explanation: str = ""
     missing: tuple[Missing, ...] = ()
+    assumed: tuple[str, ...] = ()  # assumed values it rests on (then it is soft)
 
 
 @dataclass(frozen=True)
@@ -216,11 +218,19 @@ class Finding:
 
 @dataclass(frozen=True)
 class Skipped:
-    """A resistor tied to a rail that is deliberately not judged as a logic pull."""
+    """A resistor that is deliberately not judged as a logic pull (tied to a rail, between
+    supplies, or not fitted), with the reason."""
 
-    ref: str
+    ref: str  # the part's reference
     net: str
     reason: str
+    element: str = ""  # "1-8" for an element of a resistor array
+
+    @property
+    def label(self) -> str:
+        """How reports name it: ``R9``, or ``RN1 (1–8)``."""
+        a, _, b = self.element.partition("-")
+        return f"{self.ref} ({a}–{b})" if self.element else self.ref
 
 
 @dataclass(frozen=True)

@@ -12,13 +12,14 @@ import fnmatch
 import math
 import os
 import re
-from collections.abc import Iterable, Sequence
+from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass, replace
 from pathlib import Path
 
 from .acceptance import apply_acceptances, read_acceptances
 from .circuit import Circuit, Part
 from .detect import Resolver, UnknownRail, enabled_internal_pull
+from .elements import library_pins
 from .errors import PullproofError, SourceText, ValueParseError
 from .evaluate import evaluate
 from .families.match import (
@@ -30,13 +31,15 @@ from .families.match import (
     resolve_part,
 )
 from .limits import InputPolicy
-from .nets import build_circuit
+from .nets import circuit_from_hierarchy
 from .network import Direction, Missing, PullNetwork, PullResistor, Rail
 from .provenance import Origin, Provenance, Sourced, Status
 from .results import Finding, NetworkResult, ReviewResult, Skipped, Verdict
 from .rules import RULES_FILE, Rules, load_rules
+from .schematic.hierarchy import Hierarchy, load_hierarchy
+from .schematic.model import LibPin
 from .textfile import Unreadable, read_regular
-from .topology import PullSite, find_pulls
+from .topology import PinOnNet, PullSite, find_pulls
 from .units import Q_
 
 __all__ = ["PARTS_FILE", "Selection", "parse_ref_list", "review"]
@@ -128,9 +131,12 @@ def _library(root: Path, parts: Sequence[Path]) -> PartLibrary:
     return PartLibrary(tuple(entries))
 
 
-def _findings_for_site(
-    resolver: Resolver, site: PullSite, infos: dict[str, PartInfo]
-) -> list[Finding]:
+def _parts(resolver: Resolver, labels: Iterable[str]) -> tuple[str, ...]:
+    """The part references behind resistor labels (``RN1 (1–8)`` → ``RN1``), once each."""
+    return tuple(dict.fromkeys(resolver.element(label).ref for label in labels))
+
+
+def _findings_for_site(resolver: Resolver, site: PullSite) -> list[Finding]:
     out: list[Finding] = []
     if site.ups and site.downs:
         up = ", ".join(r for r, _ in site.ups)
@@ -140,21 +146,21 @@ def _findings_for_site(
                 "up-and-down",
                 Verdict.FAIL if site.inputs else Verdict.MARGINAL,
                 site.net.name,
-                tuple(r for r, _ in (*site.ups, *site.downs)),
+                _parts(resolver, (r for r, _ in (*site.ups, *site.downs))),
                 f"{up} pulls up and {down} pulls down: together they form a divider that sets "
                 f"{_divider_text(resolver, site)}; a logic input needs one pull, not a level "
                 "between the thresholds",
             )
         )
     if not site.inputs and not site.drivers:
-        refs = tuple(r for r, _ in (*site.ups, *site.downs))
+        labels = [r for r, _ in (*site.ups, *site.downs)]
         out.append(
             Finding(
                 "pull-without-input",
                 Verdict.INCOMPLETE,
                 site.net.name,
-                refs,
-                f"{', '.join(refs)} pulls {site.net.name}, which reaches no logic input; "
+                _parts(resolver, labels),
+                f"{', '.join(labels)} pulls {site.net.name}, which reaches no logic input; "
                 "nothing on the schematic says what level it must hold",
             )
         )
@@ -164,8 +170,8 @@ def _findings_for_site(
 def _divider_text(resolver: Resolver, site: PullSite) -> str:
     """The divider's node voltage range from nominal values, when the values and rail are known."""
     spec = resolver.rules.rail(site.ups[0][1])
-    ups = [resolver.infos[r].resistor for r, _ in site.ups]
-    downs = [resolver.infos[r].resistor for r, _ in site.downs]
+    ups = [resolver.resistor_info(r) for r, _ in site.ups]
+    downs = [resolver.resistor_info(r) for r, _ in site.downs]
     values = [[i.ohms.magnitude("ohm") for i in group if i is not None and i.ohms is not None]
               for group in (ups, downs)]  # fmt: skip
     if spec is None or spec.v_min is None or spec.v_max is None:
@@ -181,14 +187,16 @@ def _divider_text(resolver: Resolver, site: PullSite) -> str:
 def _unknown_rail_result(u: UnknownRail, resolver: Resolver) -> NetworkResult | Finding:
     """A pull that cannot be judged yet: an incomplete network when only the rail voltage
     is unknown, a finding when the resistor's own value is unreadable."""
-    infos = [resolver.infos[r].resistor for r in u.refs]
+    infos = [resolver.resistor_info(r) for r in u.refs]
     if any(i is None or i.ohms is None for i in infos):
+        bad = [r for r, i in zip(u.refs, infos, strict=True) if i is None or i.ohms is None]
+        texts = ", ".join(f"{r} Value {_value_text(resolver, r)!r}" for r in bad)
         return Finding(
             "unreadable-value",
             Verdict.INCOMPLETE,
             u.site.net.name,
-            u.refs,
-            f"{', '.join(u.refs)} pulls {u.site.net.name} but its Value cannot be read as a "
+            _parts(resolver, u.refs),
+            f"{', '.join(u.refs)} pulls {u.site.net.name} but {texts} cannot be read as a "
             "resistance; write it like 4k7 or 10k",
         )
     hint = f'add [rails] {u.rail} = "3V3" (its nominal voltage) to {RULES_FILE}'
@@ -200,9 +208,10 @@ def _unknown_rail_result(u: UnknownRail, resolver: Resolver) -> NetworkResult | 
     rail = Rail(u.rail, unknown, unknown, unknown)
     first = infos[0]
     assert first is not None and first.ohms is not None
+    elements = tuple(resolver.element(r) for r in u.refs)
     resistor = PullResistor(
         u.refs, first.ohms, first.tolerance, first.tcr, first.power, first.working_voltage,
-        size=first.size,
+        size=first.size, elements=elements if any(e.array for e in elements) else (),
     )  # fmt: skip
     network = PullNetwork(
         net=u.site.net.name,
@@ -230,6 +239,11 @@ def _unknown_rail_result(u: UnknownRail, resolver: Resolver) -> NetworkResult | 
     )
 
 
+def _value_text(resolver: Resolver, label: str) -> str:
+    part = resolver.circuit.part(resolver.element(label).ref)
+    return part.value if part is not None else ""
+
+
 def _check_findings(result: NetworkResult) -> list[Finding]:
     """Failed input-tolerance checks are also findings: the rail is wrong, not the value."""
     out = []
@@ -241,7 +255,7 @@ def _check_findings(result: NetworkResult) -> list[Finding]:
                     "rail-above-input-tolerance",
                     Verdict.FAIL,
                     n.net,
-                    (*n.resistor.refs, *(i.ref for i in n.inputs)),
+                    (*(e.ref for e in n.resistor.members), *(i.ref for i in n.inputs)),
                     f"{', '.join(n.resistor.refs)} pulls {n.net} to {n.rail.name}, above what an "
                     f"input on it tolerates (needs {c.substituted})",
                 )
@@ -256,6 +270,7 @@ def review(
     parts: Sequence[str | os.PathLike[str]] = (),
     select: Selection | None = None,
     circuit: Circuit | None = None,
+    hierarchy: Hierarchy | None = None,
     policy: InputPolicy | None = None,
 ) -> ReviewResult:
     """Review every pull resistor of the schematic rooted at ``root``.
@@ -266,17 +281,22 @@ def review(
         parts: part-library files; by default ``pullproof-parts.toml`` beside the root.
         select: restrict the judged resistors (``--ref``, ``--where``).
         circuit: ``root`` already read and connected (saves reading it again).
+        hierarchy: ``root`` already read (the files behind ``circuit``).
         policy: size limits and whether sheets may lie outside the root's folder.
 
     Raises:
         PullproofError: unreadable or malformed schematic, rules, part library or field.
     """
     root_path = Path(root)
-    circuit = circuit if circuit is not None else build_circuit(root_path, policy)
+    # The symbols' own pins (which units, which geometry) tell a resistor array's elements.
+    hier = hierarchy if hierarchy is not None else load_hierarchy(root_path, policy)
+    circuit = circuit if circuit is not None else circuit_from_hierarchy(hier, os.fspath(root))
     rules_obj = load_rules(root_path, Path(rules) if rules is not None else None)
     library = _library(root_path, [Path(p) for p in parts])
     try:
-        result = review_circuit(circuit, rules_obj, library, select or Selection())
+        result = review_circuit(
+            circuit, rules_obj, library, select or Selection(), library_pins(hier, circuit)
+        )
     except ValueParseError as exc:
         raise _placed(exc, circuit) from None
     if rules_obj.file:  # Rules keeps only the file name; the note reads and digests the file
@@ -311,7 +331,11 @@ def _placed(exc: ValueParseError, circuit: Circuit) -> ValueParseError:
 
 
 def review_circuit(
-    circuit: Circuit, rules: Rules, library: PartLibrary, select: Selection
+    circuit: Circuit,
+    rules: Rules,
+    library: PartLibrary,
+    select: Selection,
+    pins: Mapping[str, tuple[LibPin, ...]] | None = None,
 ) -> ReviewResult:
     """Review an already-built circuit (the rest of :func:`review`).
 
@@ -324,28 +348,41 @@ def review_circuit(
         raise SelectionError(f"--ref: no part {named} in the schematic")
     infos = {p.ref: resolve_part(p, library, rules) for p in circuit.parts}
     resolver = Resolver(circuit, infos, rules)
-    topo = find_pulls(circuit, lambda p: _kind_word(infos[p.ref]), resolver.rail_key)
+    topo = find_pulls(
+        circuit,
+        lambda p: _kind_word(infos[p.ref]),
+        resolver.rail_key,
+        library_pins=pins,
+        ohms=lambda ref: _nominal_ohms(infos[ref]),
+    )
+    resolver.elements = topo.elements  # topology names the array elements it found
 
     def chosen(refs: Iterable[str]) -> bool:
         if not select.active:
             return True
         return any((p := circuit.part(r)) is not None and select.wants(p) for r in refs)
 
+    def skip(label: str, net: str, reason: str) -> Skipped:
+        el = resolver.element(label)
+        return Skipped(el.ref, net, reason, el.element)
+
     results: list[NetworkResult] = []
     findings: list[Finding] = []
-    skipped = [Skipped(a.ref, a.net, a.reason) for a in topo.set_aside if chosen([a.ref])]
+    skipped = [
+        Skipped(a.ref, a.net, a.reason, a.element) for a in topo.set_aside if chosen([a.ref])
+    ]
     for site in topo.sites:
         all_refs = [r for r, _ in (*site.ups, *site.downs)]
-        if not chosen(all_refs):
+        if not chosen(_parts(resolver, all_refs)):
             continue
-        findings.extend(_findings_for_site(resolver, site, infos))
+        findings.extend(_findings_for_site(resolver, site))
         if site.ups and site.downs and site.inputs:
             reason = "part of an up/down divider on a logic input (see the finding)"
-            skipped.extend(Skipped(r, site.net.name, reason) for r in all_refs)
+            skipped.extend(skip(r, site.net.name, reason) for r in all_refs)
             continue
         if site.ups and site.downs:
             reason = "divider into an analog or feedback node: both an up and a down pull"
-            skipped.extend(Skipped(r, site.net.name, reason) for r in all_refs)
+            skipped.extend(skip(r, site.net.name, reason) for r in all_refs)
             continue
         direction = Direction.UP if site.ups else Direction.DOWN
         pulls = site.ups or site.downs
@@ -370,38 +407,47 @@ def review_circuit(
         refs = tuple(sorted({p.ref for p in (*switches, *inputs)}))
         if not chosen(refs) or any(_has_internal_pull(circuit, p.ref) for p in inputs):
             continue
-        sw = ", ".join(sorted({p.ref for p in switches}))
-        ins = ", ".join(f"{p.ref} pin {p.name or p.pin}" for p in inputs)
-        # A microcontroller pin may have its internal pull enabled by firmware, which the
-        # schematic cannot show: flag it for confirmation rather than as a certain failure.
-        mcu = all(infos[p.ref].kind is PartKind.MCU for p in inputs)
-        tail = (
-            "; if firmware enables the pin's internal pull, record it with field "
-            "'pullproof.internal_pull' on the part"
-            if mcu
-            else ""
-        )
-        findings.append(
-            Finding(
-                "floating-input",
-                Verdict.MARGINAL if mcu else Verdict.FAIL,
-                net.name,
-                refs,
-                f"{ins} is driven only by {sw} and has no pull: it floats while the contact "
-                f"is open{tail}",
-            )
-        )
+        findings.append(_floating(net.name, refs, switches, inputs, infos))
     files = tuple(sorted(circuit.files.items()))
     review_result = ReviewResult(
         root=circuit.root,
         networks=tuple(sorted(results, key=lambda r: r.network.net)),
         findings=tuple(findings),
-        skipped=tuple(sorted(skipped, key=lambda s: (s.net, s.ref))),
+        skipped=tuple(sorted(skipped, key=lambda s: (s.net, s.ref, s.element))),
         files=files,
         rules_file=rules.file or None,
     )
     acceptances = read_acceptances(circuit, rules)
     return apply_acceptances(review_result, acceptances, whole=not select.active)
+
+
+def _floating(
+    net: str,
+    refs: tuple[str, ...],
+    switches: Sequence[PinOnNet],
+    inputs: Sequence[PinOnNet],
+    infos: Mapping[str, PartInfo],
+) -> Finding:
+    """A switch-driven input with no pull. It fails only when the part data say the pin
+    has no internal pull; otherwise many such pins have one (a microcontroller's, which
+    firmware enables), so it is marginal until the designer confirms it."""
+    sw = ", ".join(sorted({p.ref for p in switches}))
+    ins = ", ".join(f"{p.ref} pin {p.name or p.pin}" for p in inputs)
+    text = f"{ins} is driven only by {sw} and has no pull: it floats while the contact is open"
+    says_none = [infos[p.ref].no_internal_pull for p in inputs]
+    if all(says_none):
+        return Finding("floating-input", Verdict.FAIL, net, refs, f"{text}, and {says_none[0]}")
+    hint = (
+        "; many such pins have an internal pull: confirm it and record field "
+        "'pullproof.internal_pull' (e.g. up 30k..50k, or none) on the part, or internal_pull "
+        "in its part-library entry"
+    )
+    return Finding("floating-input", Verdict.MARGINAL, net, refs, text + hint)
+
+
+def _nominal_ohms(info: PartInfo) -> float | None:
+    res = info.resistor
+    return None if res is None or res.ohms is None else res.ohms.magnitude("ohm")
 
 
 def _has_internal_pull(circuit: Circuit, ref: str) -> bool:
@@ -414,6 +460,8 @@ def _kind_word(info: PartInfo) -> str:
     """Map the data module's part kinds onto the words topology uses."""
     return {
         PartKind.RESISTOR: "resistor",
+        PartKind.POTENTIOMETER: "potentiometer",
+        PartKind.SENSOR: "sensor",
         PartKind.CAPACITOR: "capacitor",
         PartKind.SWITCH: "switch",
         PartKind.RELAY: "relay",

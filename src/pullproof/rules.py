@@ -4,7 +4,7 @@ Every value carries its provenance: the rules key with file and line, or a named
 default with its reason. Values are written with their units as text ("5%",
 "3V3", "10ms", "100pF", "-40°C"); see :data:`KEYS` for every key, its default and
 why. Rails named like ``+5V``, ``3V3``, ``VCC_1V8``, ``-12V`` or ``VBUS`` need
-no entry: their voltage is read from the name.
+no entry: their voltage is read from the whole name (see :mod:`pullproof.supplies`).
 """
 
 from __future__ import annotations
@@ -22,6 +22,7 @@ from typing import Any
 from .errors import Location, RulesError, ValueParseError
 from .eseries import SERIES
 from .provenance import Origin, Provenance, Sourced, Status
+from .supplies import read_supply_name
 from .textfile import read_utf8
 from .units import (
     Q_,
@@ -44,11 +45,17 @@ RULES_FILE = "pullproof.toml"
 
 @dataclass(frozen=True)
 class Key:
-    """One rules key: how to read it, its default text (or None) and why that default."""
+    """One rules key: how to read it, its default text (or None) and why that default.
+
+    ``assumed`` marks a default that stands in for a property of the fitted parts or the
+    wiring (a resistor's tolerance, the bus capacitance) rather than a project choice: a
+    limit resting on it is soft (see :mod:`pullproof.assumed`).
+    """
 
     kind: str
     default: str | None
     reason: str
+    assumed: bool = False
 
 
 # Every key of the rules file. The README table is generated from this mapping.
@@ -70,8 +77,12 @@ KEYS: Mapping[str, Key] = MappingProxyType(
             "names designers give mains conductors (not logic nets such as MAINS_OK)",
         ),
         "ground": Key("patterns", "", "extra ground net names beyond the built-in ones"),
-        "resistor.tolerance": Key("percent", "5%", "E24 customary tolerance (IEC 60063)"),
-        "resistor.tcr": Key("tcr", "200ppm/K", "thick-film chip resistors, common practice"),
+        "resistor.tolerance": Key(
+            "percent", "5%", "E24 customary tolerance (IEC 60063)", assumed=True
+        ),
+        "resistor.tcr": Key(
+            "tcr", "200ppm/K", "thick-film chip resistors, common practice", assumed=True
+        ),
         "resistor.power": Key("power", None, "taken from the footprint size when known"),
         "resistor.size": Key("size", None, "taken from the footprint when known"),
         "temperature.min": Key("temperature", "0°C", "commercial range, common practice"),
@@ -81,7 +92,10 @@ KEYS: Mapping[str, Key] = MappingProxyType(
         "preferred.max": Key("resistance", "1M", "above 1 MΩ leakage and noise dominate"),
         "i2c.mode": Key("i2c", "", "no I2C unless a [[net]] entry or a net name says so"),
         "i2c.bus_capacitance": Key(
-            "capacitance", "100pF", "a short bus on one board: a few 10 pF pins plus traces"
+            "capacitance",
+            "100pF",
+            "a short bus on one board: a few 10 pF pins plus traces",
+            assumed=True,
         ),
     }
 )
@@ -158,6 +172,7 @@ class RailSpec:
     v_min: Sourced | None
     v_max: Sourced | None
     ground: bool = False
+    inferred: str = ""  # why a net is a supply by its function ("" when named or listed)
 
 
 @dataclass(frozen=True)
@@ -218,11 +233,12 @@ class Rules:
         if self.is_ground(net_name):
             zero = Sourced(Q_(0.0, "V"), _schematic(f"ground net {bare}"))
             return RailSpec(bare, zero, zero, zero, ground=True)
-        volts = rail_voltage_from_name(bare)
-        if volts is None:
-            if re.fullmatch(r"(?i)V(CC|DD|IO|DDIO|BAT|IN|SYS)\w*", bare):
-                return RailSpec(bare, None, None, None)
+        supply = read_supply_name(bare)  # the whole name must read as a supply name
+        if supply is None:
             return None
+        if supply.volts is None:
+            return RailSpec(bare, None, None, None)
+        volts = supply.volts
         tol = self.values["rail_tolerance"]
         assert isinstance(tol, Sourced)
         frac = tol.magnitude("")
@@ -270,38 +286,6 @@ def _bare(net_name: str) -> str:
 
 def _schematic(where: str) -> Provenance:
     return Provenance(Origin.SCHEMATIC, where, Status.USER)
-
-
-_RAIL_NAME = re.compile(
-    r"""
-    ^(?P<sign> [+-] )?
-    (?:
-        (?P<a> \d+ ) [V.P] (?P<b> \d+ ) V? [A-Z]*     # 3V3, 3.3V, 3P3, +3.3VP, 1V8
-      | (?P<c> \d+ ) V [A-Z]*                         # +5V, 12VA, 24V
-      | V (?P<d> \d+ ) P (?P<e> \d+ )                 # V3P3
-    )$
-    """,
-    re.VERBOSE,
-)
-
-
-def rail_voltage_from_name(name: str) -> float | None:
-    """The voltage a net name states (``+3V3`` → 3.3, ``VCC_1V8`` → 1.8, ``VBUS`` → 5.0)."""
-    upper = name.upper()
-    if upper in ("VBUS", "USB_VBUS", "VUSB"):
-        return 5.0  # USB bus power, common practice
-    for token in (upper, *re.split(r"[_\-\s]", upper)[1:], *re.split(r"[_\s]", upper)):
-        m = _RAIL_NAME.match(token)
-        if m is None:
-            continue
-        if m.group("a") is not None:
-            volts = float(f"{m.group('a')}.{m.group('b')}")
-        elif m.group("c") is not None:
-            volts = float(m.group("c"))
-        else:
-            volts = float(f"{m.group('d')}.{m.group('e')}")
-        return -volts if m.group("sign") == "-" else volts
-    return None
 
 
 # ------------------------------------------------------------------ reading the file
@@ -457,7 +441,8 @@ def _build(reader: _Reader | None, doc: Mapping[str, Any]) -> Rules:
         else:
             parsed = default_reader.value(dotted, key.kind, key.default)
             if isinstance(parsed, Sourced):
-                src = Provenance(Origin.DEFAULT, f"default {dotted}", Status.DEFAULT, key.reason)
+                origin = Origin.ASSUMED if key.assumed else Origin.DEFAULT
+                src = Provenance(origin, f"default {dotted}", Status.DEFAULT, key.reason)
                 parsed = Sourced(parsed.value, src)
             values[dotted] = parsed
     if reader is not None:

@@ -9,8 +9,14 @@ belongs, or an infinite number are all errors.
 Accepted forms (see the README "Value syntax" section):
 
 * resistance: ``47k 4k7 4K7 47kΩ "47 kohm" 47000 1M 2M2 R47 0R 470R 6L8 1R8J 27KK``,
+  ``49,9R`` (a decimal comma before the unit letter), ``30mR`` (milliohm),
   optionally followed by tolerance ``1%``, power ``0.1W``/``1/10W``/``100mW``,
-  size ``0603`` and TCR ``100ppm/K``, separated by spaces, ``/``, ``,`` or ``;``;
+  size ``0603``/``R0603`` and TCR ``100ppm/K``, separated by spaces, ``/``, ``_``,
+  ``,`` or ``;``;
+* a resistor array's Value: one element's resistance, ``4x10k``, or a longer part
+  string holding exactly one resistance (:func:`parse_element_value`);
+* a capacitor's Value: ``470pF/50V``, ``100n/16V/X7R``, ``10u 0805``
+  (:func:`parse_capacitor_text`);
 * current ``1uA 1µA 1μA 0.4mA "-0.4 mA"``; voltage ``3V3 +5V 1V8 "12 V" 230VAC``;
   capacitance ``100n 4n7 "100 nF"``; time ``10ms``; percentage ``5% ±1%``;
   temperature coefficient ``100ppm/K 50ppm/°C``; power ``0.25W 1/4W``.
@@ -30,10 +36,13 @@ from .errors import ValueParseError
 
 __all__ = [
     "Q_",
+    "CapacitorText",
     "ResistorText",
     "format_si",
     "parse_capacitance",
+    "parse_capacitor_text",
     "parse_current",
+    "parse_element_value",
     "parse_percent",
     "parse_power",
     "parse_resistance",
@@ -92,7 +101,12 @@ _EXPECT_P = "a power such as 0.1W, 1/4W or 100mW"
 _EXPECT_TEMP = "a temperature such as 25°C, -40 °C or 85degC"
 
 _NUM = r"(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?"
-_SEP = re.compile(r"[\s,;/]+")
+# Between a value and its extras: spaces, "/", "_", "," or ";" ("10k/R0603", "10k_0402").
+_SEP = re.compile(r"[\s,;/_]+")
+_TOKEN_END = " \t,;/_"
+# A comma between digits just before a multiplier or unit letter is a decimal sign
+# ("49,9R", "4,7k"; ISO 80000-1 allows comma or point); elsewhere it separates extras.
+_DECIMAL_COMMA = re.compile(r"^(\d+),(\d+)(?=[LRrKkMGTmΩΩ]|\s*[oO]hm)")
 
 # A resistance in the IEC 60062 letter-and-digit form, with an optional tolerance letter.
 _RKM_R = re.compile(
@@ -117,7 +131,7 @@ _DEC_R = re.compile(
     \s*
     (?P<prefix> [mkKMGT] )?        # no micro or nano: nobody writes µΩ on a pull-up
     \s*
-    (?P<unit> Ω | Ω | [oO]hms? )?
+    (?P<unit> Ω | Ω | [oO]hms? | R )?   # R as the ohm sign after a decimal ("49.9R", "30mR")
     """,
     re.VERBOSE,
 )
@@ -128,7 +142,8 @@ _EXTRA = re.compile(
     | (?P<pfrac> (?P<pn> \d+ ) / (?P<pd> \d+ ) \s* W )
     | (?P<pow> (?P<pnum> {_NUM} ) \s* (?P<pprefix> [mk] )? W )
     | (?P<tcr> ±? \s* (?P<tcrnum> {_NUM} ) \s* ppm (?: \s* / \s* (?: K | °C | ℃ | degC ) )? )
-    | (?P<size> 01005 | 0201 | 0402 | 0603 | 0805 | 1206 | 1210 | 1812 | 2010 | 2512 )
+    | [RC]? (?P<size> 01005 | 0201 | 0402 | 0603 | 0805 | 1206 | 1210 | 1812 | 2010 | 2512 )
+                                   # a chip size, with or without its R/C prefix ("R0603")
     """,
     re.VERBOSE,
 )
@@ -196,9 +211,13 @@ def _finite(value: Decimal, text: str, expected: str, field: str | None, part: s
 
 
 def _resistance_head(
-    text: str, field: str | None, part: str | None
+    text: str, field: str | None, part: str | None, shown: str | None = None
 ) -> tuple[float, Decimal | None, int]:
-    """Read the resistance at the start of ``text``: (ohms, tolerance letter value, end)."""
+    """Read the resistance at the start of ``text``: (ohms, tolerance letter value, end).
+
+    ``shown`` is the text as the user wrote it, for error messages (default ``text``).
+    """
+    seen = text if shown is None else shown
     m = _RKM_R.match(text)
     if m is not None and _ends_token(text, m.end()):
         if m.group("lead"):
@@ -208,24 +227,24 @@ def _resistance_head(
             mult = m.group("mult")
             value = _decimal(f"{m.group('int')}.{m.group('frac') or '0'}", _RKM_OHM[mult])
             tol = TOLERANCE_LETTERS[m.group("tol")] if m.group("tol") else None
-        return _finite(value, text, _EXPECT_R, field, part), tol, m.end()
+        return _finite(value, seen, _EXPECT_R, field, part), tol, m.end()
     m = _DEC_R.match(text)
     if m is None or (not _ends_token(text, m.end()) and not text[m.end() - 1].isspace()):
-        raise _fail(text, _EXPECT_R, field, part)
+        raise _fail(seen, _EXPECT_R, field, part)
     prefix = m.group("prefix") or ""
     if prefix == "m" and not m.group("unit"):
         raise _fail(
-            text, f"{_EXPECT_R} (lowercase m is milli: write M for megohm or mΩ)", field, part
+            seen, f"{_EXPECT_R} (lowercase m is milli: write M for megohm or mΩ)", field, part
         )
     value = _decimal(m.group("num"), _PREFIX[prefix])
     end = m.end()
     while end > 0 and text[end - 1] in " \t":  # "680 1206": the space belongs to the separator
         end -= 1
-    return _finite(value, text, _EXPECT_R, field, part), None, end
+    return _finite(value, seen, _EXPECT_R, field, part), None, end
 
 
 def _ends_token(text: str, end: int) -> bool:
-    return end == len(text) or text[end] in " \t,;/"
+    return end == len(text) or text[end] in _TOKEN_END
 
 
 def parse_resistor_text(
@@ -237,10 +256,10 @@ def parse_resistor_text(
         ValueParseError: the text is not a non-negative resistance with optional extras,
             or an extra (tolerance, power, size, TCR) is repeated or unreadable.
     """
-    body = text.strip()
+    body = _DECIMAL_COMMA.sub(r"\1.\2", text.strip())
     if not body:
         raise _fail(text, _EXPECT_R, field, part)
-    ohms, tol_letter, pos = _resistance_head(body, field, part)
+    ohms, tol_letter, pos = _resistance_head(body, field, part, text)
     found: dict[str, Any] = {}
     if tol_letter is not None:
         found["tolerance"] = Q_(float(tol_letter), "")
@@ -300,6 +319,141 @@ def _extra_value(
 def parse_resistance(text: str, *, field: str | None = "Value", part: str | None = None) -> Any:
     """Read a resistance (extras allowed and ignored); returns a quantity in ohms."""
     return parse_resistor_text(text, field=field, part=part).ohms
+
+
+# "4x10k", "8 × 4k7": a count of elements, then one element's value.
+_ELEMENT_COUNT = re.compile(r"^\s*\d+\s*[x×*]\s*(?P<rest>\S.*)$")
+# Words of a longer part string ("CAT16 4x10K 5%"): split at spaces and punctuation.
+_WORDS = re.compile(r"[\s,;/()\[\]]+")
+# A word that names a resistance carries a multiplier letter or an ohm sign (not "0402").
+_HAS_MARKER = re.compile(r"[LRrKkMGTΩΩ]|[oO]hm")
+_EXPECT_ELEMENT = f"{_EXPECT_R}, or a resistor array's value such as 4x10k"
+
+
+def parse_element_value(
+    text: str, *, field: str | None = "Value", part: str | None = None
+) -> ResistorText:
+    """One element's resistance from a resistor array's Value.
+
+    Read in order: the Value as a resistor's (``10k``, ``4k7 5%``); a count then the
+    element value (``4x10k``, ``8 × 4K7``); else a longer part string holding exactly
+    one resistance (``CAT16 4x10K 5%``). Two different resistances, or none, are an error:
+    nothing is guessed.
+
+    Raises:
+        ValueParseError: no single resistance can be read.
+    """
+    try:
+        return parse_resistor_text(text, field=field, part=part)
+    except ValueParseError:
+        pass
+    m = _ELEMENT_COUNT.match(text)
+    if m is not None:
+        try:
+            return parse_resistor_text(m.group("rest"), field=field, part=part)
+        except ValueParseError:
+            pass
+    found: dict[float, ResistorText] = {}
+    for word in _WORDS.split(text):
+        counted = _ELEMENT_COUNT.match(word)
+        word = counted.group("rest") if counted else word
+        if not word or not _HAS_MARKER.search(word):
+            continue
+        try:
+            got = parse_resistor_text(word, field=field, part=part)
+        except ValueParseError:
+            continue
+        found.setdefault(got.ohms.to("ohm").magnitude, got)
+    if len(found) != 1:
+        raise _fail(text, _EXPECT_ELEMENT, field, part)
+    return next(iter(found.values()))
+
+
+@dataclass(frozen=True)
+class CapacitorText:
+    """What a capacitor's Value text says: capacitance plus any rated voltage, dielectric,
+    tolerance and size."""
+
+    farads: Quantity
+    voltage: Quantity | None = None  # rated voltage, V
+    dielectric: str = ""  # "X7R", "C0G" …
+    tolerance: Quantity | None = None  # dimensionless fraction
+    size: str = ""
+
+
+# Extras after a capacitance: rated voltage, dielectric class, tolerance, size (order free).
+_CAP_EXTRA = re.compile(
+    rf"""
+    (?P<volt> (?P<vint> \d+ ) V (?P<vfrac> \d+ ) | (?P<vnum> {_NUM} ) \s* V ) (?: DC )?
+                                   # rated voltage: 50V, 6V3, 6.3 V
+    | (?P<diel> X[5-8][PRSTUV] | Y5V | Z5U | C0G | COG | NP0 | NPO )
+                                   # ceramic dielectric class (EIA RS-198 codes)
+    | (?P<tol> ±? \s* (?P<tolnum> {_NUM} ) \s* % )
+    | [RC]? (?P<size> 01005 | 0201 | 0402 | 0603 | 0805 | 1206 | 1210 | 1812 | 2010 | 2512 )
+    """,
+    re.VERBOSE,
+)
+_EXPECT_C_EXTRA = (
+    f"{_EXPECT_C}, then a rated voltage (50V), dielectric (X7R), tolerance (10%) or size (0603)"
+)
+
+
+def parse_capacitor_text(
+    text: str, *, field: str | None = "Value", part: str | None = None
+) -> CapacitorText:
+    """Read a capacitor Value such as ``"470pF/50V"`` or ``"100n/16V/X7R"``.
+
+    Raises:
+        ValueParseError: the text is not a capacitance with optional extras, or an extra
+            is repeated or unreadable.
+    """
+    body = text.strip()
+    head = _QTY["F"].match(body)
+    end = head.end() if head is not None else len(body)
+    while end > 0 and body[end - 1] in " \t":  # "10u 0805": the space belongs to the separator
+        end -= 1
+    try:
+        farads, _ = _quantity(body[:end], "F", _EXPECT_C, signed=False, field=field, part=part)
+    except ValueParseError as exc:
+        raise _fail(text, exc.expected, field, part) from None
+    rest = body[end:]
+    found: dict[str, Any] = {}
+    pos = 0
+    while pos < len(rest):
+        sep = _SEP.match(rest, pos)
+        if sep is None:
+            raise _fail(text, _EXPECT_C_EXTRA, field, part)
+        pos = sep.end()
+        if pos == len(rest):
+            break
+        m = _CAP_EXTRA.match(rest, pos)
+        if m is None or not _ends_token(rest, m.end()):
+            raise _fail(text, _EXPECT_C_EXTRA, field, part)
+        if m.group("volt"):
+            key, value = "voltage", Q_(_cap_volts(m, text, field, part), "V")
+        elif m.group("diel"):
+            key, value = "dielectric", m.group("diel").upper().replace("COG", "C0G")
+        elif m.group("tol"):
+            frac = _finite(_decimal(m.group("tolnum"), -2), text, _EXPECT_PCT, field, part)
+            key, value = "tolerance", Q_(frac, "")
+        else:
+            key, value = "size", m.group("size")
+        if key in found:
+            raise _fail(text, f"{_EXPECT_C} with at most one {key}", field, part)
+        found[key] = value
+        pos = m.end()
+    return CapacitorText(
+        farads=Q_(farads, "F"),
+        voltage=found.get("voltage"),
+        dielectric=str(found.get("dielectric", "")),
+        tolerance=found.get("tolerance"),
+        size=str(found.get("size", "")),
+    )
+
+
+def _cap_volts(m: re.Match[str], text: str, field: str | None, part: str | None) -> float:
+    number = f"{m.group('vint')}.{m.group('vfrac')}" if m.group("vint") else m.group("vnum")
+    return _finite(_decimal(number, 0), text, _EXPECT_V, field, part)
 
 
 def _quantity(

@@ -36,7 +36,9 @@ pytestmark = pytest.mark.skipif(
 
 NET, SKIP = "network", "skipped"
 LED = "LED series resistor"
-OPAMP = "op-amp bias or gain resistor"
+# a pull-down on an op-amp's inverting input whose net also holds the feedback resistor: the
+# two divide the output and set the gain (common practice)
+OPAMP = "divider or gain network into an analog input"
 # project → ref → ("network", net name) or ("skipped", fragment of the reason)
 EXPECTED: dict[str, dict[str, tuple[str, str]]] = {
     "dispensy": {

@@ -18,7 +18,6 @@ import re
 import tomllib
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
-from enum import StrEnum
 from pathlib import Path
 from types import MappingProxyType
 from typing import Any
@@ -33,7 +32,9 @@ from ..units import (
     Q_,
     ResistorText,
     parse_capacitance,
+    parse_capacitor_text,
     parse_current,
+    parse_element_value,
     parse_percent,
     parse_power,
     parse_resistance,
@@ -42,6 +43,8 @@ from ..units import (
     parse_time,
     parse_voltage,
 )
+from .kinds import PartKind
+from .kinds import classify as classify_kind
 from .loader import Family, InputModel, family_from_table, load_families
 
 __all__ = [
@@ -78,6 +81,11 @@ FIELDS: Mapping[str, FieldDoc] = MappingProxyType(
             "resistor", "chip size read from the footprint name", "R_0603_1608Metric"
         ),
         "pullproof.role": FieldDoc("resistor", "force (pull) or skip (skip) judging", "skip"),
+        "pullproof.elements": FieldDoc(
+            "resistor array",
+            "which pins form each element: pin pairs, or common=PIN",
+            "1-8,2-7,3-6,4-5",
+        ),
         "pullproof.working_voltage": FieldDoc("resistor", "limiting element voltage", "50V"),
         "pullproof.family": FieldDoc("logic IC", "logic family by name", "HC"),
         "pullproof.schmitt": FieldDoc("logic IC", "inputs are Schmitt triggers", "yes"),
@@ -87,7 +95,7 @@ FIELDS: Mapping[str, FieldDoc] = MappingProxyType(
         "pullproof.i_low": FieldDoc("logic input", "current out of a pin held low", "0.4mA"),
         "pullproof.v_in_max": FieldDoc("logic input", "highest voltage the pin tolerates", "5.5V"),
         "pullproof.internal_pull": FieldDoc(
-            "MCU", "internal pull firmware enables: [up|down] min..max", "up 30k..50k"
+            "MCU", "internal pull firmware enables: [up|down] min..max, or none", "up 30k..50k"
         ),
         "pullproof.contact_max": FieldDoc("switch, relay", "largest contact current", "50mA"),
         "pullproof.wetting": FieldDoc("switch, relay", "least contact (wetting) current", "1mA"),
@@ -111,81 +119,10 @@ FIELDS: Mapping[str, FieldDoc] = MappingProxyType(
 )
 
 
-class PartKind(StrEnum):
-    RESISTOR = "resistor"
-    CAPACITOR = "capacitor"
-    SWITCH = "switch"
-    RELAY = "relay"
-    OPTOCOUPLER = "optocoupler"
-    LED = "LED"
-    DIODE = "diode"
-    TRANSISTOR = "transistor"
-    LOGIC = "logic IC"
-    MCU = "microcontroller"
-    CONNECTOR = "connector"
-    OPAMP = "op-amp"
-    OTHER = "other"
-
-
-# Library-name rules first (the library says what a symbol is), then reference prefixes.
-_LIB_KIND: tuple[tuple[str, PartKind], ...] = (
-    ("Device:R*", PartKind.RESISTOR),
-    ("Device:C*", PartKind.CAPACITOR),
-    ("Device:LED*", PartKind.LED),
-    ("LED:*", PartKind.LED),
-    ("Device:D*", PartKind.DIODE),
-    ("Diode:*", PartKind.DIODE),
-    ("Device:Q*", PartKind.TRANSISTOR),
-    ("Transistor*", PartKind.TRANSISTOR),
-    ("Switch:*", PartKind.SWITCH),
-    ("Relay*", PartKind.RELAY),
-    ("Isolator:*", PartKind.OPTOCOUPLER),
-    ("Connector*", PartKind.CONNECTOR),
-    ("Amplifier_Operational:*", PartKind.OPAMP),
-    ("MCU_*", PartKind.MCU),
-    ("74xx:*", PartKind.LOGIC),
-    ("74xGxx:*", PartKind.LOGIC),
-    ("4xxx:*", PartKind.LOGIC),
-)
-_REF_KIND: tuple[tuple[str, PartKind], ...] = (
-    ("RN", PartKind.RESISTOR),
-    ("SW", PartKind.SWITCH),
-    ("LED", PartKind.LED),
-    ("OK", PartKind.OPTOCOUPLER),
-    ("ISO", PartKind.OPTOCOUPLER),
-    ("R", PartKind.RESISTOR),
-    ("C", PartKind.CAPACITOR),
-    ("S", PartKind.SWITCH),
-    ("K", PartKind.RELAY),
-    ("D", PartKind.DIODE),
-    ("Q", PartKind.TRANSISTOR),
-    ("T", PartKind.TRANSISTOR),
-    ("J", PartKind.CONNECTOR),
-    ("P", PartKind.CONNECTOR),
-)
-_MCU_NAME = re.compile(
-    r"(?i)ATMEGA|ATTINY|STM32|RP20[45]0|ESP32|ESP8266|PIC1[0268]|NRF5|SAMD|MSP430"
-)
-_OPTO_NAME = re.compile(r"(?i)^(PC8\d\d|TLP\d|6N13\d|H11|LTV|4N2\d|4N3\d|SFH6|EL8|CNY17)")
-
-
 def classify(part: Part) -> PartKind:
-    """The kind of a part from its library id, Value, reference prefix and pin types."""
-    for pattern, kind in _LIB_KIND:
-        if fnmatch.fnmatchcase(part.lib_id, pattern):
-            return kind
-    if family_from_name(part.value) or family_from_name(part.lib_id.split(":")[-1]):
-        return PartKind.LOGIC
-    if _MCU_NAME.search(part.value) or _MCU_NAME.search(part.lib_id):
-        return PartKind.MCU
-    if _OPTO_NAME.search(part.value):
-        return PartKind.OPTOCOUPLER
-    prefix = re.match(r"[A-Za-z]*", part.ref)
-    letters = prefix.group(0).upper() if prefix else ""
-    for start, kind in _REF_KIND:
-        if letters == start:
-            return kind
-    return PartKind.OTHER
+    """The kind of a part from its symbol name, Value, reference prefix and pins
+    (never from the library nickname; see :mod:`pullproof.families.kinds`)."""
+    return classify_kind(part, family_from_name)
 
 
 # ---------------------------------------------------------------- family patterns
@@ -299,6 +236,7 @@ class LibraryEntry:
     schmitt: bool
     internal_pull: tuple[Sourced, Sourced] | None
     ratings: Mapping[str, Sourced]
+    no_internal_pull: bool = False  # the entry says internal_pull = "none"
 
 
 @dataclass(frozen=True)
@@ -448,11 +386,15 @@ def _entry(name: str, table: Any, path: Path) -> LibraryEntry:
         if key in table
     }
     pull = None
-    if "internal_pull" in table:
+    no_pull = str(table.get("internal_pull", "")).strip().lower() == "none"
+    if "internal_pull" in table and not no_pull:
         span = table["internal_pull"]
         if not (isinstance(span, list) and len(span) == 2):
             raise ValueParseError(
-                str(span), expected='a range ["30k", "50k"]', field="internal_pull", part=part
+                str(span),
+                expected='a range ["30k", "50k"] or "none"',
+                field="internal_pull",
+                part=part,
             )
         lo, hi = (parse_resistance(str(t), field="internal_pull", part=part) for t in span)
         if lo > hi:
@@ -474,6 +416,7 @@ def _entry(name: str, table: Any, path: Path) -> LibraryEntry:
         schmitt=schmitt,
         internal_pull=pull,
         ratings=MappingProxyType(ratings),
+        no_internal_pull=no_pull,
     )
 
 
@@ -513,6 +456,8 @@ class PartInfo:
     resistor: ResistorInfo | None = None
     ratings: Ratings = Ratings()
     missing: tuple[Missing, ...] = ()
+    # why the part's data say its inputs have no internal pull ("" when they do not say)
+    no_internal_pull: str = ""
 
 
 def _field_source(part: Part, name: str) -> Provenance:
@@ -527,15 +472,20 @@ def _read_field(part: Part, name: str, reader: Callable[..., Any]) -> Sourced | 
 
 
 def _default(value: Any, name: str, reason: str, status: Status = Status.DEFAULT) -> Sourced:
-    return Sourced(value, Provenance(Origin.DEFAULT, f"default {name}", status, reason))
+    """A rating the part does not state, assumed from its kind or size: a limit resting on it
+    is soft (see :mod:`pullproof.assumed`)."""
+    return Sourced(value, Provenance(Origin.ASSUMED, f"assumed {name}", status, reason))
 
 
 def _resistor(part: Part, rules: Rules) -> tuple[ResistorInfo, tuple[Missing, ...]]:
     missing: list[Missing] = []
     text: ResistorText | None = None
     value_src = Provenance(Origin.VALUE, f"Value of {part.ref}", Status.USER)
+    # A resistor array's Value names one element ("10k", "4x10k", or a part string with one
+    # resistance in it); a two-pin resistor's Value is read as written.
+    read = parse_element_value if len(part.pins) > 2 else parse_resistor_text
     try:
-        text = parse_resistor_text(part.value, field="Value", part=part.ref)
+        text = read(part.value, field="Value", part=part.ref)
     except ValueParseError as exc:
         missing.append(Missing(f"resistance of {part.ref}", part.ref, f"{exc}; write e.g. 4k7"))
     ohms = Sourced(text.ohms, value_src) if text else None
@@ -661,8 +611,8 @@ def _ratings(part: Part, entry: LibraryEntry | None, kind: PartKind) -> Ratings:
         # an unreadable capacitor Value is reported by the check that needs it, as missing data
         with contextlib.suppress(ValueParseError):
             values["capacitance"] = Sourced(
-                # "100nF 0603": the capacitance is the first word
-                parse_capacitance(part.value.split()[0], field="Value", part=part.ref),
+                # "100nF 0603", "470pF/50V", "100n/16V/X7R": the capacitance comes first
+                parse_capacitor_text(part.value, field="Value", part=part.ref).farads,
                 Provenance(Origin.VALUE, f"Value of {part.ref}", Status.USER),
             )
     for key, (value, reason, status) in _DEFAULTS.get(kind, {}).items():
@@ -722,7 +672,22 @@ def resolve_part(part: Part, library: PartLibrary, rules: Rules) -> PartInfo:
         overrides = _overrides(part)
         if overrides:
             model = model.with_overrides(overrides)
-    return PartInfo(part.ref, kind, name, model, pins, None, ratings, tuple(missing))
+    none = _no_internal_pull(part, entry, name if model is not None else "")
+    return PartInfo(part.ref, kind, name, model, pins, None, ratings, tuple(missing), none)
+
+
+def _no_internal_pull(part: Part, entry: LibraryEntry | None, model_name: str) -> str:
+    """Why the data say the part's inputs have no internal pull, or "" when they do not say:
+    the field or a part-library entry says ``none``, or the inputs follow a built-in logic
+    family (standard logic inputs have no pull; their family tables list none)."""
+    text = part.field("pullproof.internal_pull")
+    if text is not None and text.strip().lower() == "none":
+        return f"field 'pullproof.internal_pull' on {part.ref} says the pin has none"
+    if entry is not None and entry.no_internal_pull:
+        return f"part library entry {entry.name} says the pin has none (internal_pull = none)"
+    if model_name in load_families() and (entry is None or entry.internal_pull is None):
+        return f"{model_name} logic inputs have no internal pull (its family data)"
+    return ""
 
 
 def _input_model(

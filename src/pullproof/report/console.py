@@ -122,8 +122,8 @@ def review_table(result: ReviewResult) -> str:
             out.append(f"  {word:10} {finding_line(f)}\n")
     if result.skipped:
         out.append("\nnot judged as logic pulls:\n")
-        for s in sorted(result.skipped, key=lambda s: s.ref):
-            out.append(f"  {s.ref:6} {s.net}: {s.reason}\n")
+        for s in sorted(result.skipped, key=lambda s: (s.ref, s.element)):
+            out.append(f"  {s.label:6} {s.net}: {s.reason}\n")
     marks = [
         (f"{','.join(r.network.resistor.refs)} on {r.network.net} ({r.verdict.value})", r.accepted)
         for r in order

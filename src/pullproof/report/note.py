@@ -408,7 +408,7 @@ def note_context(
         "worst": result.worst,
         "networks": views,
         "findings": findings,
-        "skipped": sorted(result.skipped, key=lambda s: (s.ref, s.net)),
+        "skipped": sorted(result.skipped, key=lambda s: (s.ref, s.element, s.net)),
         "files": files,
         "rules": rules,
         "formulas": _formulas(result),

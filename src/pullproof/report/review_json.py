@@ -78,6 +78,7 @@ def _limit(item: Bound | Check, **own: Any) -> dict[str, Any]:
         "source": item.source,
         "terms": [_term(t) for t in item.terms],
         "missing": [_missing(m) for m in item.missing],
+        "assumed": list(item.assumed),
     }
 
 
@@ -100,11 +101,12 @@ def _network(r: NetworkResult) -> dict[str, Any]:
         "rail_volts": [_num(n.rail.v_min, "V"), _num(n.rail.v_max, "V")],
         "resistors": [
             {
-                "ref": ref,
+                "ref": el.ref,
+                "element": el.element or None,
                 "value_ohms": _num(n.resistor.ohms, "ohm"),
                 "tolerance": _num(n.resistor.tolerance, ""),
             }
-            for ref in n.resistor.refs
+            for el in n.resistor.members
         ],
         "band_ohms": list(r.band),
         "inputs": [
@@ -155,8 +157,8 @@ def _finding(f: Finding) -> dict[str, Any]:
     }
 
 
-def _skipped(s: Skipped) -> dict[str, str]:
-    return {"ref": s.ref, "net": s.net, "reason": s.reason}
+def _skipped(s: Skipped) -> dict[str, str | None]:
+    return {"ref": s.ref, "element": s.element or None, "net": s.net, "reason": s.reason}
 
 
 def _changes(c: Changes | None) -> dict[str, Any] | None:

@@ -134,7 +134,7 @@ def _network(r: NetworkResult, where: _Locator) -> dict[str, Any]:
         f"verdict/{r.verdict.value}",
         _LEVEL[r.verdict],
         network_line(r),
-        where.location(n.resistor.refs),
+        where.location(tuple(e.ref for e in n.resistor.members)),  # the part, for arrays too
         f"{','.join(n.resistor.refs)}|{n.net}",
         r.accepted,
     )
