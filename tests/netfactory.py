@@ -109,6 +109,7 @@ def rules(**kw: Any) -> NetworkRules:
         "bounce_time": "s",
         "edge_time_max": "s",
         "bus_capacitance": "F",
+        "wiring_capacitance": "F",
         "margin_ratio": "",
     }
     base: dict[str, Any] = {

@@ -4,7 +4,9 @@
 html.parser and returns a list of problems (empty when the note is sound): every
 network has its section and summary link, every formula term refers to a
 provenance entry of its own section, charts carry a text equivalent, the mains
-caution sits exactly on the mains-adjacent networks, file digests match, and
+caution sits exactly on the mains-adjacent networks, the operating-point table has a row
+for the fitted value and one per recommended value with its formulas referenced, file
+digests match, and
 nothing in the page runs script or fetches from a network.
 """
 
@@ -48,6 +50,8 @@ class Section:
     svg_titles: int = 0
     svg_descs: int = 0
     mains: int = 0
+    op_rows: int = 0  # rows of the operating-point table
+    op_refs: list[tuple[int, str]] = field(default_factory=list)  # refs in its formulas
     verdicts: list[str] = field(default_factory=list)
     heading: str = ""
 
@@ -88,6 +92,10 @@ class NoteParser(HTMLParser):
             return
         if tag == "a" and "ref" in classes and self._inside("tr", "limit"):
             sec.refs.append((int(attrs.get("data-ref", "0")), attrs.get("href", "")))
+        if tag == "a" and "ref" in classes and self._inside("dl", "opfig"):
+            sec.op_refs.append((int(attrs.get("data-ref", "0")), attrs.get("href", "")))
+        if tag == "tr" and "op-row" in classes and self._inside("table", "oppoint"):
+            sec.op_rows += 1
         if tag == "li" and self._inside("ol", "prov") and "id" in attrs:
             sec.prov_ids.add(attrs["id"])
         if tag == "svg" and attrs.get("role") == "img":
@@ -171,6 +179,16 @@ def check_note_html(html: str, result: ReviewResult) -> list[str]:
         for number, href in sec.refs:
             if href != f"#{sec.anchor}_p{number}" or href[1:] not in sec.prov_ids:
                 problems.append(f"{net.net}: term reference {href!r} has no provenance entry")
+        op = nr.operating
+        rows = 0 if op is None else 1 + len(nr.recommendation.points if nr.recommendation else ())
+        if sec.op_rows != rows:
+            problems.append(f"{net.net}: {sec.op_rows} operating-point rows, expected {rows}")
+        n_op = 0 if op is None else sum(len(f.terms) for f in op.figures)
+        if len(sec.op_refs) != n_op:
+            problems.append(f"{net.net}: {len(sec.op_refs)} operating-point references for {n_op}")
+        for number, href in sec.op_refs:
+            if href != f"#{sec.anchor}_p{number}" or href[1:] not in sec.prov_ids:
+                problems.append(f"{net.net}: operating-point reference {href!r} has no entry")
         if sec.svgs != 1 or sec.svg_titles < 1 or sec.svg_descs < 1:
             problems.append(f"{net.net}: chart missing or without <title>/<desc>")
         want = 1 if net.mains_adjacent else 0

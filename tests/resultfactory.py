@@ -24,6 +24,7 @@ from pullproof.network import (
     Rail,
     SwitchOnNet,
 )
+from pullproof.operating import operating_point, operating_points
 from pullproof.provenance import Origin, Provenance, Sourced, Status
 from pullproof.results import (
     Bound,
@@ -365,10 +366,12 @@ def finish(
             pick if cands else None,
             "centre",
             policy_reason or "no E24 value fits the window",
+            operating_points(n, cands),
         )
     return NetworkResult(
-        n, bounds, window, b, verdict, reason, margins, binding, rec, checks, advice, missing
-    )
+        n, bounds, window, b, verdict, reason, margins, binding, rec, checks, advice, missing,
+        operating_point(n),
+    )  # fmt: skip
 
 
 def net_pass() -> NetworkResult:

@@ -59,7 +59,10 @@ def test_an_assumed_wetting_current_is_a_soft_limit(tmp_path: Path) -> None:
     result = review(_panel(tmp_path))
     verdict, reason = _start(result)
     assert verdict is Verdict.MARGINAL
-    assert "contact wetting current (assumed) limit of 47.5 kΩ" in reason
+    assert reason.endswith(
+        "above the 47.5 kΩ at which SW1 still gets its 100 µA wetting current; that limit rests "
+        "on assumed switch wetting."
+    )
     (start,) = [n for n in result.networks if n.network.net == "/START"]
     wet = next(b for b in start.bounds if b.constraint == "wetting-current")
     assert not wet.hard and wet.assumed == ("assumed switch wetting",)
@@ -73,8 +76,7 @@ def test_a_stated_wetting_current_makes_it_hard(tmp_path: Path) -> None:
     root.write_text(text, encoding="utf-8")
     verdict, reason = _start(review(root))
     assert verdict is Verdict.FAIL
-    assert reason.endswith("above the maximum of 47.5 kΩ from contact wetting current "
-                           "(wetting-current).")  # fmt: skip
+    assert reason.endswith("above the 47.5 kΩ at which SW1 still gets its 100 µA wetting current.")
 
 
 def test_a_band_that_crosses_a_limit_only_through_assumed_tolerance(tmp_path: Path) -> None:

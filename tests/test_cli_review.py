@@ -67,7 +67,7 @@ def test_console_report(capsys: pytest.CaptureFixture[str]) -> None:
     out = capsys.readouterr().out
     assert out.startswith(f"pullproof review of {PANEL}\n")
     assert "/STOP_BTN  R2" in out
-    assert "above the maximum of 2 kΩ from low level holds (low-level-holds)" in out
+    assert "can reach 4.79 kΩ, above the 2 kΩ at which the current out of the inputs" in out
     assert out.endswith("1 networks (fail 1); 0 findings\n")
 
 

@@ -9,6 +9,7 @@ memory); RC step response (circuit theory); chip-resistor ratings (common practi
 from __future__ import annotations
 
 import math
+from dataclasses import replace
 from typing import Any
 
 import pytest
@@ -346,6 +347,112 @@ def test_edge_rate_generic(vil: float, vih: float, factor: float, direction: str
     # a Schmitt input is exempt from the family's transition limit
     schmitt = network(inp(lv, schmitt=True), switches=(switch(),), capacitors=(cap(1e-9),))
     assert edge_rate(schmitt) == ()
+
+
+# A 1 V line with V_IL 0.3 V and V_IH 0.9 V, 1 nF, and an allowed edge of ln 9 · 1 µs.
+EDGE_LEVELS = levels(1.0, 0.9, 0.3, 0.0, 0.0, c_in=0.0)
+LN9_US = math.log(9) * 1e-6
+
+
+def _driven(*drivers: Any) -> Any:
+    return network(
+        inp(EDGE_LEVELS),
+        pull_rail=rail("+1V", 1.0),
+        drivers=drivers,
+        capacitors=(cap(1e-9),),
+        net_rules=rules(edge_time_max=LN9_US),
+    )
+
+
+def test_open_drain_rising_edge_starts_at_its_v_ol() -> None:
+    # RC step response (REFERENCES §5): from 10 % to 90 % of the rail takes ln 9 · RC, so a
+    # driver that leaves the line at V_OL = 0.1 V gives R ≤ ln 9 · 1 µs / (1 nF · ln 9) = 1 kΩ.
+    b = only(edge_rate(_driven(driver("U9", v_ol=0.1))))
+    assert b.ohms == pytest.approx(1e3, rel=REL)
+    assert b.formula == "R_hi ≤ t_max / (C · ln((V − V_OL)/(V − V_IH,min)))"
+    assert "edge from V_OL(U9) = 100 mV" in b.corner
+    assert "starts at V_OL(U9) = 100 mV, where U9 leaves the line" in b.explanation
+    assert "V_OL(U9)" in [t.symbol for t in b.terms]
+
+
+def test_optocoupler_rising_edge_starts_at_its_vce_sat() -> None:
+    # the same RC step response from an optocoupler's V_CE(sat) = 0.1 V (REFERENCES §5)
+    opto = driver("U5", "optocoupler", None, None, 0.0, ctr_min=1.0, ageing=1.0,
+                  i_f_min=0.1, vce_sat=0.1)  # fmt: skip
+    b = only(edge_rate(_driven(opto)))
+    assert b.ohms == pytest.approx(1e3, rel=REL)
+    assert b.formula == "R_hi ≤ t_max / (C · ln((V − V_CE(sat))/(V − V_IH,min)))"
+
+
+def test_rising_edge_from_the_lowest_driver_level() -> None:
+    # two drivers: the lower V_OL (0.1 V) makes the longer edge (RC step response, §5)
+    b = only(edge_rate(_driven(driver("U8", v_ol=0.25), driver("U9", v_ol=0.1))))
+    assert b.ohms == pytest.approx(1e3, rel=REL)
+    assert "V_OL(U9)" in b.corner
+
+
+@pytest.mark.parametrize("origin", ["default", "assumed"])
+def test_default_driver_level_does_not_tighten_the_edge(origin: str) -> None:
+    # A default V_OL may not set a hard limit: the edge is timed from V_IL,max = 0.3 V, so
+    # R ≤ ln 9 · 1 µs / (1 nF · ln((1 − 0.3)/(1 − 0.9))) = 1 kΩ · ln 9 / ln 7 (RC step response).
+    from pullproof.provenance import Origin, Provenance, Sourced
+    from pullproof.units import Q_
+
+    guessed = Sourced(Q_(0.1, "V"), Provenance(Origin(origin), "default transistor V_OL"))
+    d = driver("Q3", "transistor")
+    b = only(edge_rate(_driven(replace(d, v_ol=guessed))))
+    assert b.ohms == pytest.approx(1e3 * math.log(9) / math.log(7), rel=REL)
+    assert b.formula == "R_hi ≤ t_max / (C · ln((V − V_IL,max)/(V − V_IH,min)))"
+    assert "only a default" in b.explanation
+
+
+def test_driver_level_above_v_il_times_the_band() -> None:
+    # a driver that cannot pull below V_IL: the band alone is timed, from V_IL,max = 0.3 V
+    b = only(edge_rate(_driven(driver("U9", v_ol=0.5))))
+    assert b.ohms == pytest.approx(1e3 * math.log(9) / math.log(7), rel=REL)
+    assert "(V_OL(U9) lies above it)" in b.corner
+
+
+def test_switch_edge_is_timed_through_the_band() -> None:
+    # a contact bounces: its edge is timed from V_IL,max (RC step response, §5)
+    net = network(
+        inp(EDGE_LEVELS),
+        pull_rail=rail("+1V", 1.0),
+        switches=(switch(),),
+        capacitors=(cap(1e-9),),
+        net_rules=rules(edge_time_max=LN9_US),
+    )
+    b = only(edge_rate(net))
+    assert b.ohms == pytest.approx(1e3 * math.log(9) / math.log(7), rel=REL)
+    assert "from V_IL,max" in b.explanation
+
+
+def test_capacitance_terms_keep_their_sources() -> None:
+    # C = wiring (rules) + every input's C_in + fitted capacitors; each term keeps its source
+    lv = levels(1.0, 0.9, 0.3, 0.0, 0.0, c_in=10e-12)
+    net = network(
+        inp(lv, ref="U1"),
+        inp(lv, ref="U2"),
+        pull_rail=rail("+1V", 1.0),
+        switches=(switch(),),
+        capacitors=(cap(100e-12, "C4"),),
+        net_rules=rules(edge_time_max=1e-6, wiring_capacitance=380e-12),
+    )
+    found = common.capacitance(net)
+    assert found.farads == pytest.approx(500e-12)
+    assert [t.symbol for t in found.terms] == [
+        "C_wiring", "C_in(U1 pin 1)", "C_in(U2 pin 1)", "C(C4)"
+    ]  # fmt: skip
+    # RC step response through the band 0.3 V → 0.9 V: ln 7 · R · 500 pF ≤ 1 µs
+    assert ohms(edge_rate(net)) == pytest.approx(1e-6 / (500e-12 * math.log(7)), rel=REL)
+
+
+def test_missing_input_capacitance_says_how_to_add_it() -> None:
+    lv = levels(1.0, 0.9, 0.3, 0.0, 0.0)
+    net = network(inp(lv, ref="U1"), switches=(switch(),), net_rules=rules(edge_time_max=1e-6))
+    (m,) = only(edge_rate(net)).missing
+    assert m.what == "C_in of U1 pin 1"
+    assert "pullproof.c_in" in m.hint
 
 
 # ---------------------------------------------------------------- debounce

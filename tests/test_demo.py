@@ -20,7 +20,7 @@ from notecheck import check_note_html
 from pullproof.demo import DEMO_ROOT, demo_files, write_demo
 from pullproof.errors import EXIT_INPUT
 from pullproof.report.note import render_note
-from pullproof.results import ReviewResult, Verdict
+from pullproof.results import OperatingPoint, ReviewResult, Verdict
 from pullproof.review import review
 
 REPO = Path(__file__).resolve().parents[1]
@@ -222,6 +222,52 @@ def test_demo_limits_match_published_values(
 ) -> None:
     got = window(demo_result, net)[side]
     assert got == pytest.approx(expected, rel=1e-3)
+
+
+def op(result: ReviewResult, net: str) -> OperatingPoint:
+    found = next(nr.operating for nr in result.networks if nr.network.net == net)
+    assert found is not None
+    return found
+
+
+def test_demo_operating_points(demo_result: ReviewResult) -> None:
+    # Ohm's law: 10 kΩ ±5 % with 200 ppm/K over −10…55 °C (rules defaults, common practice)
+    # bottoms out at 10 kΩ · 0.95 · (1 − 200e-6 · 35) = 9.434 kΩ; +3V3 + 3 % = 3.399 V
+    menu = op(demo_result, "/BTN_MENU")
+    r_lo = 10e3 * 0.95 * (1 - 200e-6 * 35)
+    assert menu.current_max.value is not None
+    assert menu.current_max.value.magnitude("A") == pytest.approx(3.399 / r_lo, rel=1e-9)
+    # Joule heating: P = V² / R_lo
+    assert menu.power.value is not None
+    assert menu.power.value.magnitude("W") == pytest.approx(3.399**2 / r_lo, rel=1e-9)
+    # RC step response: the optocoupler's edge starts at its V_CE(sat) (example part data)
+    assert "from V_CE(sat)(U20) = 200 mV" in op(demo_result, "/PUMP_AC_OK").edge.note
+    # the float-switch cable's 300 pF (rules [[net]] capacitance) plus the MCU pin's 5 pF
+    tank = op(demo_result, "/FLOAT_TANK").edge
+    caps = {t.symbol: t.value.magnitude("F") for t in tank.terms if t.symbol.startswith("C")}
+    assert caps == {"C_wiring": pytest.approx(300e-12), "C_in(U2 pin 5)": pytest.approx(5e-12)}
+    # UM10204 §7.1: t_r = 0.8473 · R_hi · C_b on the I2C lines, 150 pF from the demo rules
+    sda = op(demo_result, "/SDA")
+    r_hi = 4.7e3 * 1.05 * (1 + 200e-6 * 35)
+    assert sda.edge.value is not None
+    assert sda.edge.value.magnitude("s") == pytest.approx(0.8473 * r_hi * 150e-12, rel=1e-9)
+
+
+def test_demo_note_shows_operating_points_and_codes(demo_dir: Path) -> None:
+    html = (demo_dir / NOTE).read_text(encoding="utf-8")
+    assert html.count('<table class="oppoint">') == len(EXPECTED)
+    assert html.count('class="op-row fitted"') == len(EXPECTED)
+    assert "<code>4K7</code>" in html  # IEC 60062 code beside each candidate (4K7: its example)
+
+
+def test_demo_resistors_on_the_mains_are_checked(demo_result: ReviewResult) -> None:
+    # 230 V AC over R20 + R21 (47 kΩ ±1 %, 1206 at 200 V, common practice): the worst share of
+    # one is 230 · 47.47 / (47.47 + 46.53) = 116.1 V (Ohm's law), within 200 V
+    got = {c.ref: (c.ok, c.chain) for c in demo_result.resistor_voltages}
+    assert got == {"R20": (True, ("R20", "R21")), "R21": (True, ("R20", "R21"))}
+    volts = {c.ref: c.volts for c in demo_result.resistor_voltages}
+    assert volts["R20"] == pytest.approx(230 * 47.47 / 94.0)
+    assert [h.net for h in demo_result.hazardous_nets] == ["/mains/AC_L", "/mains/AC_N"]
 
 
 def test_demo_note_is_sound(demo_dir: Path, demo_result: ReviewResult) -> None:

@@ -59,8 +59,19 @@ def test_marginal_by_margin() -> None:
     r = evaluate(hc_pullup(1.3e6, 0.01))
     assert r.verdict is Verdict.MARGINAL
     assert r.reason == (
-        "Hard limits are met, but R1 (1.3 MΩ ±1 %) spans 1.287 MΩ–1.313 MΩ, only 2.818 % "
-        "inside the 1.35 MΩ maximum from high level holds; the rules ask for 10 %."
+        "Hard limits are met, but R1 (1.3 MΩ ±1 %) can reach 1.313 MΩ, only 2.818 % inside the "
+        "1.35 MΩ at which the leakage still leaves U1 pin 1 above its 3.15 V V_IH,min; the rules "
+        "ask for 10 %."
+    )
+
+
+def test_pass_far_inside_says_how_many_times() -> None:
+    # JESD7A Example 1 (from memory): 10 kΩ ±5 % reaches 10.5 kΩ against 1.35 MΩ, 129 times over
+    r = evaluate(hc_pullup(10e3, 0.05))
+    assert r.verdict is Verdict.PASS
+    assert r.reason == (
+        "R1 (10 kΩ ±5 %) spans 9.5 kΩ–10.5 kΩ, well inside the window: the 1.35 MΩ maximum "
+        "is 129× R_hi."
     )
 
 
@@ -74,8 +85,8 @@ def test_marginal_by_soft_bound() -> None:
     r = evaluate(hc_pullup(1e6, 0.05, net_rules=rules(preferred_max=470e3)))
     assert r.verdict is Verdict.MARGINAL
     assert r.reason == (
-        "Hard limits are met, but R1 (1 MΩ ±5 %) spans 950 kΩ–1.05 MΩ, above the preferred "
-        "range limit of 470 kΩ."
+        "Hard limits are met, but R1 (1 MΩ ±5 %) can reach 1.05 MΩ, above the 470 kΩ where "
+        "the preferred range ends."
     )
 
 
@@ -84,8 +95,8 @@ def test_fail() -> None:
     r = evaluate(hc_pullup(1.3e6, 0.05))
     assert r.verdict is Verdict.FAIL
     assert r.reason == (
-        "R1 (1.3 MΩ ±5 %) spans 1.235 MΩ–1.365 MΩ, above the maximum of 1.35 MΩ from "
-        "high level holds (high-level-holds)."
+        "R1 (1.3 MΩ ±5 %) can reach 1.365 MΩ, above the 1.35 MΩ at which the leakage still "
+        "leaves U1 pin 1 above its 3.15 V V_IH,min."
     )
 
 
@@ -94,9 +105,7 @@ def test_fail_on_check() -> None:
     lv = levels(3.3, 2.0, 0.8, 1e-6, 1e-6, v_in_max=3.6)
     r = evaluate(network(inp(lv, same_supply_as_pull=False), pull_rail=rail("+5V", 5.0)))
     assert r.verdict is Verdict.FAIL
-    assert r.reason == (
-        "Input tolerates the pull rail is not met: it needs 5 V ≤ 3.6 V (input-tolerance)."
-    )
+    assert r.reason == ("The pull rail reaches 5 V but U1 pin 1 tolerates at most 3.6 V.")
 
 
 def test_incomplete() -> None:
@@ -144,8 +153,8 @@ def test_empty_window_advice() -> None:
     assert r.verdict is Verdict.FAIL
     assert r.window == (pytest.approx(12e3, rel=REL), pytest.approx(6e3, rel=REL))
     assert r.reason == (
-        "No resistance fits: switch contact rating needs at least 12 kΩ but contact "
-        "wetting current allows at most 6 kΩ."
+        "No resistance fits: R must be at least 12 kΩ (at which SW2 carries no more than its "
+        "rated 1 mA) but at most 6 kΩ (at which SW2 still gets its 2 mA wetting current)."
     )
     assert r.advice == (
         "Switch contact rating (contact-rating) needs R at least 12 kΩ; relax it with a switch "

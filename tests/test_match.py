@@ -232,8 +232,8 @@ def test_bad_part_library(tmp_path: Path) -> None:
         load_part_library(path)
     assert str(info.value) == (
         f"{path}:2:1: field 'kind' of [part.X]: cannot read 'gadget'; expected one of resistor, "
-        "potentiometer, sensor, capacitor, switch, relay, optocoupler, LED, diode, transistor, logic IC, "
-        "microcontroller, connector, op-amp, other"
+        "potentiometer, sensor, capacitor, switch, relay, optocoupler, LED, diode, transistor, "
+        "logic IC, microcontroller, connector, op-amp, other"
     )
 
 

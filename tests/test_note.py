@@ -203,7 +203,11 @@ def test_empty_window_advice_and_missing_values_shown() -> None:
 def test_recommendation_lists_candidates_and_pick() -> None:
     html = render(sample_result(1))
     assert "<strong>E24 5.1\u00a0kΩ</strong> at ±5\u00a0% — closest to the geometric centre" in html
-    assert "45 E24 values whose whole band fits: 620\u00a0Ω, 680\u00a0Ω," in html
+    # every candidate carries its IEC 60062 code (470R is the standard's own example form)
+    assert (
+        "45 E24 values whose whole band fits: 620\u00a0Ω (<code>620R</code>), "
+        "680\u00a0Ω (<code>680R</code>)," in html
+    )
 
 
 def test_no_networks_still_renders() -> None:
@@ -326,3 +330,37 @@ def test_format_window(window: tuple[float | None, float | None], text: str) -> 
 
 def test_format_ohms_none() -> None:
     assert format_ohms(None) == "—"
+
+
+@pytest.mark.parametrize(
+    ("margin", "side", "text"),
+    [
+        # the band's room at each edge, as a reader uses it (arithmetic, common practice)
+        (407.26, "below", "R_lo is 408×\u00a0the minimum"),  # not "+40726 %"
+        (0.23, "below", "R_lo is 23\u00a0% above the minimum"),
+        (-0.1, "below", "R_lo is 10\u00a0% below the minimum: not met"),
+        (2.0, "above", "the maximum is 3×\u00a0R_hi"),
+        (0.1, "above", "the maximum is 10\u00a0% above R_hi"),
+        (-0.2, "above", "R_hi is 25\u00a0% above the maximum: not met"),  # 1 / 0.8 = 1.25
+        (None, "above", "—"),
+    ],
+)
+def test_margins_read_as_room_at_each_edge(margin: float | None, side: str, text: str) -> None:
+    from pullproof.report.format import format_margin
+
+    assert format_margin(margin, side) == text
+
+
+def test_check_rows_read_as_sentences(tmp_path: Path) -> None:
+    from pullproof.review import review
+
+    repo = Path(__file__).resolve().parents[1]
+    result = review(repo / "fixtures" / "review" / "interlock_panel.kicad_sch",
+                    parts=[repo / "fixtures" / "parts" / "generic_mcu33.toml"])  # fmt: skip
+    html = render(result)
+    # the example part library's pin tolerates VDD + 0.3 V = 3.6 V; a +5V ± 5 % rail reaches 5.25 V
+    assert (
+        "The pull rail reaches 5.25\u00a0V but U3 pin 7 tolerates at most 3.6\u00a0V." not in html
+    )
+    assert "The pull rail reaches 5.25 V but U3 pin 7 tolerates at most 3.6 V." in html
+    assert "+40726" not in html and "R_lo is " in html

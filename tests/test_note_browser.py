@@ -82,6 +82,12 @@ def test_rendered_dom_has_every_chart(tmp_path: Path) -> None:
     )
     assert dom.count('class="network"') == len(result.networks)
     assert "<script" not in dom
+    # the operating-point table: one per network, a fitted row, then one row per candidate
+    with_op = [nr for nr in result.networks if nr.operating is not None]
+    assert dom.count('<table class="oppoint">') == len(with_op)
+    assert dom.count('class="op-row fitted"') == len(with_op)
+    candidates = sum(len(nr.recommendation.points) for nr in with_op if nr.recommendation)
+    assert dom.count('class="op-row') == len(with_op) + candidates
 
 
 def test_screenshot_is_written(tmp_path: Path) -> None:
@@ -105,6 +111,13 @@ def test_demo_note_prints_one_page_or_more_per_network(tmp_path: Path) -> None:
     assert pages >= networks + 1
     dom = chromium(tmp_path, "--dump-dom", demo.note.as_uri()).stdout.decode()
     assert dom.count('class="chart" role="img"') == networks
+    assert dom.count('<table class="oppoint">') == networks
+    if shutil.which("pdftotext"):  # the printed note carries every operating-point table
+        pdf = demo.note.with_suffix(".pdf")
+        text = subprocess.run(["pdftotext", str(pdf), "-"], capture_output=True, text=True,
+                              timeout=30, check=True).stdout  # fmt: skip
+        assert text.count("Operating point") == networks
+        assert "fitted R22" in text and "E24 pick" in text
     png = tmp_path / "demo.png"
     chromium(tmp_path, f"--screenshot={png}", "--window-size=1000,1400", demo.note.as_uri())
     assert png.read_bytes().startswith(b"\x89PNG\r\n\x1a\n")

@@ -11,6 +11,7 @@ wetting current of a silver contact (common practice); resistor power derating t
 from __future__ import annotations
 
 import json
+import math
 from functools import cache
 from pathlib import Path
 from typing import Any
@@ -128,6 +129,15 @@ def test_input_tolerance_check_and_finding() -> None:
     assert check["substituted"] == "5.25 V ≤ 3.6 V"
     f = next(f for f in panel().findings if f.kind == "rail-above-input-tolerance")
     assert (f.net, f.refs, f.severity) == ("/TOOL_PROBE", ("R9", "U3"), Verdict.FAIL)
+    # reasons and findings read as sentences naming the parts
+    assert net("/TOOL_PROBE")["reason"] == (
+        "The pull rail reaches 5.25 V but U3 pin 7 tolerates at most 3.6 V."
+    )
+    assert f.message == (
+        "R9 pulls /TOOL_PROBE to +5V: the pull rail reaches 5.25 V but U3 pin 7 tolerates at "
+        "most 3.6 V"
+    )
+    assert check["sentence"] == "the pull rail reaches 5.25 V but U3 pin 7 tolerates at most 3.6 V"
 
 
 def test_parallel_pulls_are_one_network() -> None:
@@ -267,6 +277,87 @@ def test_a_rail_with_unknown_voltage_is_incomplete(tmp_path: Path) -> None:
     )
     (tmp_path / "pullproof.toml").write_text('[rails]\nVLOGIC = "5V"\n', encoding="utf-8")
     assert review(tmp_path / "bench.kicad_sch").networks[0].verdict is Verdict.PASS
+
+
+def _hive_lid(tmp_path: Path, rules: str) -> ReviewResult:
+    """A beehive scale: the hive-lid switch at the end of a cable, into a 74HC00 gate."""
+    from builder import SWITCH_PINS, Pin
+    from placer import LabelPlacer
+
+    bench = LabelPlacer(frozenset({"+5V", "GND"}))
+    bench.resistor("R1", "10k", "+5V", "HIVE_LID", Footprint="R_0603_1608Metric")
+    bench.place("SW1", "Switch:SW_Reed", SWITCH_PINS, "LID_REED", {"1": "HIVE_LID", "2": "GND"})
+    gate = (Pin("1", (-7.62, 2.54), "input"), Pin("3", (7.62, 0), "output"))
+    fields = {"pullproof.vih": "3.5V", "pullproof.vil": "1.5V", "pullproof.c_in": "10pF"}
+    bench.place("U1", "74xx:74HC00", gate, "74HC00", {"1": "HIVE_LID"}, **fields)
+    (tmp_path / "pullproof.toml").write_text(rules, encoding="utf-8")
+    return review(bench.b.write(tmp_path / "hive.kicad_sch"))
+
+
+HIVE_RULES = """\
+edge_time = "10us"
+[rails]
+"+5V" = { nominal = "5V", tolerance = "0%" }
+[[net]]
+match = "*HIVE_LID"
+capacitance = "490pF"   # five metres of cable to the lid
+"""
+
+
+def test_capacitance_on_a_line_that_is_not_i2c(tmp_path: Path) -> None:
+    (r,) = _hive_lid(tmp_path, HIVE_RULES).networks
+    b = next(b for b in r.bounds if b.constraint == "edge-rate")
+    # RC step response (REFERENCES §5): V_IL 1.5 V = 0.3·5 V and V_IH 3.5 V = 0.7·5 V, so the
+    # band takes ln(7/3)·RC (the 0.8473 constant of UM10204 §7.1); C = 490 pF cable + 10 pF pin:
+    # R ≤ 10 µs / (ln(7/3) · 500 pF) = 23.60 kΩ
+    assert b.ohms == pytest.approx(10e-6 / (math.log(7 / 3) * 500e-12), rel=1e-9)
+    sources = {t.symbol: t.value.source.where for t in b.terms}
+    assert sources["C_wiring"] == "rules key net.capacitance (pullproof.toml:6)"
+    assert sources["C_in(U1 pin 1)"] == "field 'pullproof.c_in' on U1"
+    assert r.network.notes == ()
+
+
+def test_wiring_capacitance_is_not_added_to_an_i2c_bus_figure(tmp_path: Path) -> None:
+    rules = HIVE_RULES.replace('match = "*HIVE_LID"', 'match = "*HIVE_LID"\ni2c = "standard"')
+    (r,) = _hive_lid(tmp_path, rules).networks
+    b = next(b for b in r.bounds if b.title.startswith("I2C rise time"))
+    # UM10204 §7.1 eq. (1) with the default bus capacitance: 1000 ns / (0.8473 · 100 pF)
+    assert b.ohms == pytest.approx(1000e-9 / (0.8473 * 100e-12), rel=1e-9)
+    assert not b.hard  # the default bus capacitance is an assumption
+    (note,) = r.network.notes
+    assert note.startswith("the wiring capacitance from rules key net.capacitance")
+
+
+@pytest.mark.parametrize(
+    ("span", "leakage", "which"),
+    [
+        # JESD7A 74HC input leakage: ±0.1 µA at 25 °C, ±1.0 µA over temperature (from memory)
+        (("25°C", "25°C"), 0.1e-6, "the 25 °C figure"),
+        (("0°C", "70°C"), 1.0e-6, "the figure over temperature"),
+        (("25°C", "40°C"), 1.0e-6, "the figure over temperature"),
+    ],
+)
+def test_leakage_figure_follows_the_temperature_span(
+    tmp_path: Path, span: tuple[str, str], leakage: float, which: str
+) -> None:
+    from builder import Pin
+    from placer import LabelPlacer
+
+    bench = LabelPlacer(frozenset({"+2V", "GND"}))
+    bench.resistor("R1", "1M", "+2V", "PROBE")
+    gate = (Pin("1", (-7.62, 2.54), "input"), Pin("3", (7.62, 0), "output"))
+    bench.place("U1", "74xx:74HC00", gate, "74HC00", {"1": "PROBE"})
+    (tmp_path / "pullproof.toml").write_text(
+        f'margin = "0V"\n[rails]\n"+2V" = {{ nominal = "2V", tolerance = "0%" }}\n'
+        f'[temperature]\nmin = "{span[0]}"\nmax = "{span[1]}"\n',
+        encoding="utf-8",
+    )
+    (r,) = review(bench.b.write(tmp_path / "probe.kicad_sch")).networks
+    b = next(b for b in r.bounds if b.constraint == "high-level-holds")
+    # REFERENCES Example 1 and its variant: (2.0 − 1.5) V / I_IH (JESD7A levels, from memory)
+    assert b.ohms == pytest.approx(0.5 / leakage, rel=1e-9)
+    term = next(t for t in b.terms if t.symbol.startswith("I_high"))
+    assert which in term.value.source.reason
 
 
 # ------------------------------------------------------------------ selection

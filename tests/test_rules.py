@@ -113,3 +113,26 @@ def test_errors(tmp_path: Path, text: str, message: str) -> None:
 def test_explicit_missing_file(tmp_path: Path) -> None:
     with pytest.raises(RulesError, match="cannot read rules file"):
         load_rules(tmp_path / "x.kicad_sch", tmp_path / "nope.toml")
+
+
+def test_net_capacitance_is_read_with_its_source(tmp_path: Path) -> None:
+    (tmp_path / "pullproof.toml").write_text(
+        '[[net]]\nmatch = "*FLOAT*"\ncapacitance = "300pF"\n', encoding="utf-8"
+    )
+    rules = load_rules(tmp_path / "x.kicad_sch")
+    c = rules.for_net("/FLOAT_TANK").capacitance
+    assert c is not None and c.magnitude("F") == pytest.approx(300e-12)
+    assert c.source.where == "rules key net.capacitance (pullproof.toml:3)"
+    assert rules.for_net("/KEY_UP").capacitance is None
+
+
+def test_net_capacitance_needs_a_unit(tmp_path: Path) -> None:
+    (tmp_path / "pullproof.toml").write_text(
+        '[[net]]\nmatch = "*FLOAT*"\ncapacitance = "300"\n', encoding="utf-8"
+    )
+    with pytest.raises(RulesError) as info:
+        load_rules(tmp_path / "x.kicad_sch")
+    assert str(info.value) == (
+        f"{tmp_path / 'pullproof.toml'}:3:1: rules key 'net.capacitance': cannot read '300'; "
+        "expected a capacitance such as 100n, 4n7 or 100 nF"
+    )

@@ -21,7 +21,7 @@ from typing import TYPE_CHECKING
 from . import __version__
 from .errors import EXIT_FINDINGS, EXIT_INPUT, EXIT_INTERNAL, PullproofError
 from .limits import DEFAULT_MAX_FILE_BYTES, DEFAULT_MAX_TOTAL_BYTES, InputPolicy
-from .report.safe_text import for_terminal, json_text
+from .report.safe_text import for_terminal, json_chunks, json_text
 
 __all__ = ["main"]
 
@@ -113,7 +113,14 @@ def _cmd_review(args: argparse.Namespace) -> int:
     if args.sarif:
         write_report(args.sarif, json_text(sarif_log(result, circuit)) + "\n", "SARIF log",
                      result.inputs)  # fmt: skip
-    _out(json_text(review_json(result)) + "\n" if args.json else review_table(result))
+    if args.json:
+        # streamed, not built as one string: with every candidate's operating point a large
+        # board's document is tens of megabytes
+        for chunk in json_chunks(review_json(result)):
+            sys.stdout.write(chunk)
+        sys.stdout.write("\n")
+    else:
+        _out(review_table(result))
     return EXIT_FINDINGS if result.gate.rank >= _FAIL_ON[args.fail_on] else 0
 
 

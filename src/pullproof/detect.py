@@ -11,12 +11,13 @@ from __future__ import annotations
 import fnmatch
 import re
 from collections.abc import Mapping
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 from .circuit import Circuit, Net, Part
 from .elements import Element
 from .errors import ValueParseError
 from .families.match import PartInfo, PartKind, ResistorInfo
+from .hazard import Hazard, hazard_of
 from .network import (
     CapacitorOnNet,
     Direction,
@@ -110,6 +111,7 @@ class Resolver:
         self.infos = infos
         self.rules = rules
         self.nets = {n.name: n for n in circuit.nets}
+        self._hazards: dict[str, Hazard | None] = {}
         self.supplies = supply_nets(circuit)
         self.elements: Mapping[str, Element] = elements or {}
 
@@ -148,7 +150,7 @@ class Resolver:
         spec = self.rules.rail(name)
         if spec is None or spec.v_min is None or spec.v_max is None or spec.nominal is None:
             return None
-        return Rail(spec.name, spec.v_min, spec.v_max, spec.nominal, ground=spec.ground)
+        return Rail(spec.name, spec.v_min, spec.v_max, spec.nominal, ground=spec.ground, ac=spec.ac)
 
     def _ground(self) -> Rail:
         zero = Sourced(Q_(0.0, "V"), Provenance(Origin.SCHEMATIC, "ground net", Status.USER))
@@ -236,6 +238,8 @@ class Resolver:
                 )
             return InputOnNet(pin.ref, pin.pin, info.family, (), series_ohms=series,
                               series_ref=pin.via, missing=tuple(missing))  # fmt: skip
+        if self._at_room_temperature():
+            model = replace(model, room_temperature_only=True)
         pull = enabled_internal_pull(part)
         supply = self._supply_of(part)
         same = not rail.ground and (supply is None or supply.name == rail.name)
@@ -269,6 +273,13 @@ class Resolver:
             schmitt=model.schmitt,
             missing=tuple(missing),
         )
+
+    def _at_room_temperature(self) -> bool:
+        """True when the rules' temperature span stays at 25 °C, where families state input
+        currents of their own (JEDEC tables give 25 °C and over-temperature figures)."""
+        lo: float = self.rules.get("temperature.min").magnitude("degC")
+        hi: float = self.rules.get("temperature.max").magnitude("degC")
+        return abs(lo - 25.0) < 1e-9 and abs(hi - 25.0) < 1e-9
 
     # ------------------------------------------------------------------ switches, drivers
     def _far_rail(self, far_net: str) -> RailSpec | None:
@@ -331,21 +342,46 @@ class Resolver:
         return CapacitorOnNet(pin.ref, farads, far.name if far else pin.far_net)
 
     # ------------------------------------------------------------------ mains
-    def mains_reason(self, site: PullSite) -> str:
-        """Why this network sits next to mains ("" when it does not)."""
-        if self.rules.is_mains(site.net.name):
-            return f"the net {site.net.name} matches a mains pattern"
+    def mains_reason(self, site: PullSite, rails: tuple[str, ...] = ()) -> str:
+        """Why this network sits next to mains or other hazardous voltage ("" when it does
+        not): its net is at it, its pull rail is, a two-terminal part ties it to such a net,
+        or a driver or switch part also connects to one (an optocoupler, a relay)."""
+        own = self.hazard(site.net.name)
+        if own is not None:
+            return own.reason
+        for name in rails:
+            h = hazard_of(self.rules, name, self.rules.rail(name))
+            if h is not None:
+                return f"the pull rail {name} {h.what}"
+        for m in site.net.members:  # a two-terminal part (capacitor, resistor) to such a net
+            part = self.circuit.part(m.ref)
+            if part is None or len(part.pins) != 2:
+                continue
+            for p in part.pins:
+                far = self.circuit.net_of(part.ref, p.number)
+                h = None if far is None or far.name == site.net.name else self.hazard(far.name)
+                if far is not None and h is not None:
+                    return f"{part.ref} ties it to {far.name}, which {h.what}"
         for pin in (*site.drivers, *site.switches):
             part = self.circuit.part(pin.ref)
             if part is None:
                 continue
             for other in self._nets_near(part, site.net.name):
-                if self.rules.is_mains(other):
-                    return f"{pin.ref} also connects to the mains net {other}"
+                h = self.hazard(other)
+                if h is not None:
+                    return f"{pin.ref} also connects to {other}, which {h.what}"
         return ""
 
-    def _nets_near(self, part: Part, exclude: str) -> set[str]:
-        """Nets on the part's other pins, and one two-terminal part beyond them."""
+    def hazard(self, name: str) -> Hazard | None:
+        """The hazard of the net called ``name`` (mains pattern or rail voltage), or None."""
+        if name not in self._hazards:
+            net = self.nets.get(name)
+            spec = self.rail_of(net) if net is not None else None
+            self._hazards[name] = hazard_of(self.rules, name, spec)
+        return self._hazards[name]
+
+    def _nets_near(self, part: Part, exclude: str) -> list[str]:
+        """Nets on the part's other pins, then those one two-terminal part beyond them."""
         first = {
             n.name
             for p in part.pins
@@ -355,8 +391,8 @@ class Resolver:
         for name in first:
             net = self.nets[name]
             spec = self.rail_of(net)
-            if spec is not None and not self.rules.is_mains(name):
-                continue  # a supply or ground reaches everything; mains is never beyond it
+            if spec is not None and self.hazard(name) is None:
+                continue  # a supply or ground reaches everything; a hazard is never beyond it
             for m in net.members:
                 other = self.circuit.part(m.ref)
                 if other is None or other.ref == part.ref or len(other.pins) != 2:
@@ -365,7 +401,7 @@ class Resolver:
                     far = self.circuit.net_of(other.ref, p.number)
                     if far is not None:
                         found.add(far.name)
-        return found
+        return sorted(first) + sorted(found - first)
 
     # ------------------------------------------------------------------ rules
     def net_rules(self, net: str, rail: Rail | None) -> NetworkRules:
@@ -391,6 +427,7 @@ class Resolver:
             edge_time_max=nr.edge_time,
             i2c_mode=nr.i2c_mode,
             bus_capacitance=nr.bus_capacitance,
+            wiring_capacitance=nr.capacitance,
         )
 
     # ------------------------------------------------------------------ the network
@@ -421,7 +458,8 @@ class Resolver:
                 )
             )
         opposite = self._opposite(direction, switches, drivers)
-        mains = self.mains_reason(site)
+        net_rules = self.net_rules(site.net.name, opposite if rail.ground and opposite else rail)
+        mains = self.mains_reason(site, tuple(sorted({r for _, r in pulls})))
         return PullNetwork(
             net=site.net.name,
             sheet=site.sheet,
@@ -429,7 +467,7 @@ class Resolver:
             rail=rail,
             resistor=resistor,
             inputs=inputs,
-            rules=self.net_rules(site.net.name, opposite if rail.ground and opposite else rail),
+            rules=net_rules,
             switches=switches,
             drivers=drivers,
             capacitors=caps,
@@ -437,6 +475,7 @@ class Resolver:
             mains_adjacent=bool(mains),
             mains_reason=mains,
             missing=tuple(missing),
+            notes=_capacitance_notes(net_rules),
         )
 
     def _opposite(
@@ -452,3 +491,13 @@ class Resolver:
             if s.pulls_against:
                 return self._rail(s.other_side)
         return None
+
+
+def _capacitance_notes(rules: NetworkRules) -> tuple[str, ...]:
+    """Say so when a stated wiring capacitance is not added (an I2C bus figure covers it)."""
+    if rules.wiring_capacitance is not None and rules.bus_capacitance is not None:
+        return (
+            f"the wiring capacitance from {rules.wiring_capacitance.source.where} is not added: "
+            "on an I2C line the bus capacitance stands for the pins and the wiring together",
+        )
+    return ()

@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Iterable, Mapping
+from dataclasses import replace
 
 from . import eseries
 from .assumed import assumed_band, nominal_meets, soften
@@ -19,6 +20,7 @@ from .constraints import BUILTIN, Constraint, ConstraintPluginError
 from .constraints._common import band, dedupe, eng, pct
 from .errors import RulesError
 from .network import Missing, PullNetwork
+from .operating import analyse, operating_points
 from .results import Bound, BoundKind, Check, NetworkResult, Recommendation, Verdict
 
 __all__ = ["DEFAULT_MARGIN_RATIO", "OPEN_BOTTOM_OHMS", "OPEN_TOP_OHMS", "evaluate", "recommend"]
@@ -70,7 +72,11 @@ def evaluate(
     verdict, reason = _judge(network, bounds, checks, (r_lo, r_hi), lo_b, hi_b, margins, missing)
     rec = None
     if not missing and not empty and (lo is not None or hi is not None):
-        rec = recommend(network, (lo, hi), soft=[b for b in bounds if not b.hard and b.evaluated])
+        soft = [b for b in bounds if not b.hard and b.evaluated]
+        rec = recommend(network, (lo, hi), soft=soft, points=False)
+    operating, points = analyse(network, rec.candidates if rec else ())
+    if rec is not None:
+        rec = replace(rec, points=points)
     return NetworkResult(
         network=network,
         bounds=bounds,
@@ -84,6 +90,7 @@ def evaluate(
         checks=checks,
         advice=advice,
         missing=missing,
+        operating=operating,
     )
 
 
@@ -142,16 +149,18 @@ def _judge(
     margins: tuple[float | None, float | None],
     missing: tuple[Missing, ...],
 ) -> tuple[Verdict, str]:
+    """The verdict and its deciding reason, as a plain sentence naming the parts."""
     r_lo, r_hi = rband
     res = network.resistor
-    fitted = (
+    who = (
         f"{'/'.join(res.refs)} ({eng(res.ohms.magnitude('ohm'), 'Ω')} "
-        f"±{pct(res.tolerance.magnitude(''))}) spans {eng(r_lo, 'Ω')}–{eng(r_hi, 'Ω')}"
+        f"±{pct(res.tolerance.magnitude(''))})"
     )
+    fitted = f"{who} spans {eng(r_lo, 'Ω')}–{eng(r_hi, 'Ω')}"
     if lo_b is not None and hi_b is not None and _ohms(lo_b) > _ohms(hi_b) * (1 + _REL):
         return Verdict.FAIL, (
-            f"No resistance fits: {lo_b.title.lower()} needs at least {eng(_ohms(lo_b), 'Ω')} "
-            f"but {hi_b.title.lower()} allows at most {eng(_ohms(hi_b), 'Ω')}."
+            f"No resistance fits: R must be at least {_limit(lo_b, aside=True)} but at most "
+            f"{_limit(hi_b, aside=True)}."
         )
     hard_bad = [b for b in bounds if b.hard and _violated(b, r_lo, r_hi)]
     band_rests_on = assumed_band(res)
@@ -160,14 +169,10 @@ def _judge(
     hard_bad = [b for b in hard_bad if b not in band_only]
     if hard_bad:
         b = max(hard_bad, key=lambda x: _shortfall(x, r_lo, r_hi))
-        side = "below the minimum" if b.kind is BoundKind.MIN else "above the maximum"
-        return Verdict.FAIL, (
-            f"{fitted}, {side} of {eng(_ohms(b), 'Ω')} from {b.title.lower()} ({b.constraint})."
-        )
+        return Verdict.FAIL, f"{_reach(who, b, r_lo, r_hi)}, {_side(b)} the {_limit(b)}."
     bad_checks = [c for c in checks if c.hard and c.ok is False]
     if bad_checks:
-        c = bad_checks[0]
-        return Verdict.FAIL, f"{c.title} is not met: it needs {c.substituted} ({c.constraint})."
+        return Verdict.FAIL, _check_reason(bad_checks[0])
     if missing:
         m = missing[0]
         more = f" (and {len(missing) - 1} more)" if len(missing) > 1 else ""
@@ -176,42 +181,74 @@ def _judge(
         # The nominal value meets the limit; only the assumed tolerance or TCR carries the
         # band across it, and an assumption never makes a hard fail.
         b = band_only[0]
-        side = "below the minimum" if b.kind is BoundKind.MIN else "above the maximum"
         return Verdict.MARGINAL, (
-            f"{fitted}, {side} of {eng(_ohms(b), 'Ω')} from {b.title.lower()} ({b.constraint}) "
-            f"only through the assumed {' and '.join(band_rests_on)}; state the part's "
-            "Tolerance and TCR to decide."
+            f"{_reach(who, b, r_lo, r_hi)}, {_side(b)} the {_limit(b)}, but only through the "
+            f"assumed {' and '.join(band_rests_on)}; state the part's Tolerance and TCR to decide."
         )
     soft_bad = [b for b in bounds if not b.hard and _violated(b, r_lo, r_hi)]
     soft_bad_checks = [c for c in checks if not c.hard and c.ok is False]
     if soft_bad:
         b = soft_bad[0]
-        side = "below" if b.kind is BoundKind.MIN else "above"
+        reach = _reach(who, b, r_lo, r_hi)
+        rests = f"; that limit rests on {', '.join(b.assumed)}" if b.assumed else ""
         return Verdict.MARGINAL, (
-            f"Hard limits are met, but {fitted}, {side} the {b.title.lower()} "
-            f"limit of {eng(_ohms(b), 'Ω')}."
+            f"Hard limits are met, but {reach}, {_side(b)} the {_limit(b)}{rests}."
         )
     if soft_bad_checks:
         c = soft_bad_checks[0]
-        return Verdict.MARGINAL, f"Hard limits are met, but {c.title.lower()} is missed."
+        text = c.sentence or f"{c.title.lower()} is missed"
+        return Verdict.MARGINAL, f"Hard limits are met, but {text}."
     need = network.rules.margin_ratio
     threshold = DEFAULT_MARGIN_RATIO if need is None else need.magnitude("")
     edges = [(r, e) for r, e in zip(margins, (lo_b, hi_b), strict=True) if r is not None and e]
     if edges:
         ratio, edge = min(edges, key=lambda e: e[0])
+        ask = f"the rules ask for {pct(threshold)}"
         if ratio < threshold:
-            what = "minimum" if edge.kind is BoundKind.MIN else "maximum"
+            reach = _reach(who, edge, r_lo, r_hi)
             return Verdict.MARGINAL, (
-                f"Hard limits are met, but {fitted}, only {pct(ratio)} inside the "
-                f"{eng(_ohms(edge), 'Ω')} {what} from {edge.title.lower()}; "
-                f"the rules ask for {pct(threshold)}."
+                f"Hard limits are met, but {reach}, only {pct(ratio)} inside the "
+                f"{_limit(edge)}; {ask}."
             )
-        nearest = eng(_ohms(edge), "Ω")
         if ratio >= 1.0:
-            # A percentage in the thousands reads as noise: name the nearest limit instead.
-            return Verdict.PASS, f"{fitted}, well inside the window (nearest limit {nearest})."
+            # A percentage in the thousands reads as noise: say how many times over it is.
+            times = f"{1 + ratio:.3g}×"
+            lim = eng(_ohms(edge), "Ω")
+            room = (
+                f"R_lo is {times} the {lim} minimum"
+                if edge.kind is BoundKind.MIN
+                else f"the {lim} maximum is {times} R_hi"
+            )
+            return Verdict.PASS, f"{fitted}, well inside the window: {room}."
         return Verdict.PASS, f"{fitted}, at least {pct(ratio)} inside the window."
     return Verdict.PASS, f"{fitted}; no constraint limits the resistance on this net."
+
+
+def _reach(who: str, b: Bound, r_lo: float, r_hi: float) -> str:
+    """'R3 (47 kΩ ±5 %) can reach 49.9 kΩ' for the band end a bound compares."""
+    if b.kind is BoundKind.MIN:
+        return f"{who} can be as low as {eng(r_lo, 'Ω')}"
+    return f"{who} can reach {eng(r_hi, 'Ω')}"
+
+
+def _side(b: Bound) -> str:
+    return "below" if b.kind is BoundKind.MIN else "above"
+
+
+def _limit(b: Bound, *, aside: bool = False) -> str:
+    """'3.2 kΩ at which SW3 still gets its 1 mA wetting current' (a bound's own clause), or
+    '3.2 kΩ maximum set by contact wetting current' for a bound that gives none."""
+    value = eng(_ohms(b), "Ω")
+    if b.says:
+        return f"{value} ({b.says})" if aside else f"{value} {b.says}"
+    word = "minimum" if b.kind is BoundKind.MIN else "maximum"
+    return f"{value} ({b.title.lower()})" if aside else f"{value} {word} set by {b.title.lower()}"
+
+
+def _check_reason(c: Check) -> str:
+    if c.sentence:
+        return f"{c.sentence[:1].upper()}{c.sentence[1:]}."
+    return f"{c.title} is not met: it needs {c.substituted} ({c.constraint})."
 
 
 def _shortfall(b: Bound, r_lo: float, r_hi: float) -> float:
@@ -224,13 +261,15 @@ def recommend(
     window: tuple[float | None, float | None],
     *,
     soft: Iterable[Bound] = (),
+    points: bool = True,
 ) -> Recommendation:
     """E-series values whose whole band fits ``window``, and the pick by the rules' policy.
 
     The band uses the fitted resistor's tolerance and TCR (the part the designer
     buys), so the list answers "which value of this part would fit". An open side
     of the window is closed at :data:`OPEN_TOP_OHMS` / :data:`OPEN_BOTTOM_OHMS`.
-    Soft bounds narrow the pick (not the list) when some candidate meets them.
+    Soft bounds narrow the pick (not the list) when some candidate meets them. With
+    ``points``, each candidate's operating-point numbers come along.
     Policies: ``centre`` picks the candidate nearest the geometric centre of the
     (soft-narrowed) window on a log scale; ``low-current`` picks the largest.
     Raises :class:`~pullproof.errors.RulesError` for an unknown series or policy.
@@ -287,4 +326,5 @@ def recommend(
         pick,
         rules.policy,
         f"{eng(pick, 'Ω')} is {why}{note}.",
+        operating_points(network, cands) if points else (),
     )

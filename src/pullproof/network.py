@@ -53,6 +53,7 @@ class Rail:
     v_max: Sourced
     v_nom: Sourced
     ground: bool = False
+    ac: bool = False  # an AC rail: the voltages are rms
 
 
 @dataclass(frozen=True)
@@ -186,7 +187,8 @@ class NetworkRules:
     bounce_time: Sourced | None = None  # s
     edge_time_max: Sourced | None = None  # s, slowest allowed edge through the undefined band
     i2c_mode: str = ""  # "", "standard", "fast", "fast-plus" when the net is an I2C line
-    bus_capacitance: Sourced | None = None  # F
+    bus_capacitance: Sourced | None = None  # F, an I2C bus: pins and wiring together
+    wiring_capacitance: Sourced | None = None  # F, wiring or cable on any net (rules)
     # ratio: a band closer than this to a binding hard edge is "marginal" (evaluate: 10 %)
     margin_ratio: Sourced | None = None
 
@@ -206,7 +208,7 @@ class PullNetwork:
     drivers: tuple[DriverOnNet, ...] = ()
     capacitors: tuple[CapacitorOnNet, ...] = ()
     opposite_rail: Rail | None = None  # the rail a switch/driver pulls toward (usually ground)
-    mains_adjacent: bool = False
+    mains_adjacent: bool = False  # next to mains or other hazardous voltage (see hazard.py)
     mains_reason: str = ""
     missing: tuple[Missing, ...] = ()
     notes: tuple[str, ...] = field(default_factory=tuple)

@@ -77,4 +77,17 @@ class Sourced:
         from .units import ureg
 
         q = self.value if hasattr(self.value, "to") else ureg.Quantity(self.value)
-        return float(q.to(unit).magnitude) if unit else float(q.to("").magnitude)
+        held = getattr(q, "_units", None)
+        if held is not None:
+            # Most values are asked for in the unit they are held in; converting through pint
+            # is slow, so remember for each (held unit, asked unit) whether they are the same.
+            key = (held, unit)
+            same = _SAME_UNIT.get(key)
+            if same is None:
+                same = _SAME_UNIT[key] = q.to(unit)._units == held
+            if same:
+                return float(q.magnitude)
+        return float(q.to(unit).magnitude)
+
+
+_SAME_UNIT: dict[tuple[Any, str], bool] = {}

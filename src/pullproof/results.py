@@ -21,10 +21,15 @@ __all__ = [
     "BoundKind",
     "Changes",
     "Check",
+    "Figure",
     "Finding",
+    "HazardousNet",
     "NetworkChange",
     "NetworkResult",
+    "OperatingPoint",
+    "PointValues",
     "Recommendation",
+    "ResistorVoltage",
     "ReviewResult",
     "Severity",
     "Skipped",
@@ -62,6 +67,7 @@ FINDING_KINDS = frozenset(
         "up-and-down",
         "pull-without-input",
         "unreadable-value",
+        "resistor-working-voltage",
     }
 )
 
@@ -138,6 +144,9 @@ class Bound:
     relax: str = ""  # what would relax this bound, for empty-window advice
     corner: str = ""  # which corner was worst, e.g. "VCC = 4.5 V, 85 °C"
     missing: tuple[Missing, ...] = ()
+    # A clause naming the parts, completing "the 3.2 kΩ …": "at which SW3 still gets its 1 mA
+    # wetting current". Reasons are built from it; "" falls back to the title.
+    says: str = ""
     assumed: tuple[str, ...] = ()  # assumed values it rests on (then it is soft)
 
     @property
@@ -160,7 +169,77 @@ class Check:
     source: str = ""
     explanation: str = ""
     missing: tuple[Missing, ...] = ()
+    # The outcome as a plain sentence naming the parts, without the final full stop: "the pull
+    # rail reaches 5.25 V but U2 pin 3 tolerates at most 3.5 V". "" falls back to the formula.
+    sentence: str = ""
     assumed: tuple[str, ...] = ()  # assumed values it rests on (then it is soft)
+
+
+@dataclass(frozen=True)
+class Figure:
+    """One number of an operating point, how it was computed, and from what.
+
+    ``value`` is None when it cannot be computed: ``note`` then says why, or ``missing``
+    names the values to add. Otherwise ``note`` adds what a reader needs to use it.
+    """
+
+    symbol: str  # "I_max", "P", "V_idle", "t_edge", "t_r"
+    value: Sourced | None
+    formula: str  # "I_max = V_max / R_lo"
+    substituted: str  # "(5.25 V − 0 V) / 9.5 kΩ"
+    terms: tuple[Term, ...]
+    note: str = ""
+    missing: tuple[Missing, ...] = ()
+    unit: str = ""  # the base unit ``value`` is in: "A", "W", "V" or "s"
+
+    @property
+    def number(self) -> float | None:
+        """The value as a float in ``unit`` (None when there is none)."""
+        return None if self.value is None else float(self.value.value.magnitude)
+
+
+@dataclass(frozen=True)
+class OperatingPoint:
+    """What the line does at one resistance over its whole band (see :mod:`pullproof.operating`)."""
+
+    ohms: float  # the nominal value
+    band: tuple[float, float]  # (R_lo, R_hi) with the fitted part's tolerance and TCR
+    current_max: Figure  # while a switch or driver holds the line the other way
+    current_min: Figure  # the least current through a closed contact
+    power: Figure  # the resistor's dissipation meanwhile
+    idle: Figure  # the idle level at the net with the worst leakage
+    edge: Figure  # the slowest edge the pull makes, where the capacitance is known
+
+    @property
+    def figures(self) -> tuple[Figure, ...]:
+        return (self.current_max, self.current_min, self.power, self.idle, self.edge)
+
+    def values(self) -> PointValues:
+        """The same numbers as plain floats, like a candidate's."""
+
+        return PointValues(self.ohms, self.band, *(f.number for f in self.figures))
+
+
+@dataclass(frozen=True)
+class PointValues:
+    """An operating point's numbers at one resistance, in base units; None where a figure
+    does not apply or is unknown. Candidates carry only these: their formulas, terms and
+    provenance are those of the network's :class:`OperatingPoint`, with their own band."""
+
+    ohms: float
+    band: tuple[float, float]
+    current_max: float | None  # A
+    current_min: float | None  # A
+    power: float | None  # W
+    idle: float | None  # V
+    edge: float | None  # s
+
+    #: Units of the five figures, in order.
+    UNITS = ("A", "A", "W", "V", "s")
+
+    @property
+    def figures(self) -> tuple[float | None, ...]:
+        return (self.current_max, self.current_min, self.power, self.idle, self.edge)
 
 
 @dataclass(frozen=True)
@@ -173,6 +252,7 @@ class Recommendation:
     pick: float | None
     policy: str  # "centre" or "low-current"
     reason: str  # one sentence on why the pick
+    points: tuple[PointValues, ...] = ()  # each candidate's operating-point numbers, in order
 
 
 @dataclass(frozen=True)
@@ -191,6 +271,7 @@ class NetworkResult:
     checks: tuple[Check, ...] = ()
     advice: tuple[str, ...] = ()  # for an empty window: what would relax each binding bound
     missing: tuple[Missing, ...] = ()
+    operating: OperatingPoint | None = None  # at the fitted value; None when not computed
     accepted: AcceptanceMark | None = None
 
     @property
@@ -214,6 +295,32 @@ class Finding:
     def counts(self) -> bool:
         """False while an acceptance holds: the finding then does not count toward --fail-on."""
         return self.accepted is None or not self.accepted.holds
+
+
+@dataclass(frozen=True)
+class HazardousNet:
+    """A net at mains or other hazardous voltage (see :mod:`pullproof.hazard`)."""
+
+    net: str
+    volts: float  # nominal; rms when ``ac``
+    ac: bool
+    reason: str
+
+
+@dataclass(frozen=True)
+class ResistorVoltage:
+    """A resistor tied (alone or in a series chain) to a hazardous net, and its working-voltage
+    check."""
+
+    ref: str
+    net: str  # the hazardous net the chain starts on
+    chain: tuple[str, ...]  # the series chain, starting at the hazardous net
+    volts: float | None  # worst-case voltage across this resistor (rms for AC)
+    ac: bool
+    working: float | None  # its working voltage, V
+    ok: bool | None  # None: a value is unknown
+    text: str  # one sentence naming the parts
+    assumed: tuple[str, ...] = ()  # values nothing states that the result rests on
 
 
 @dataclass(frozen=True)
@@ -281,6 +388,8 @@ class ReviewResult:
     notes: tuple[str, ...] = field(default_factory=tuple)
     warnings: tuple[str, ...] = ()  # stale or unrecorded acceptances
     changes: Changes | None = None  # set by a review against an older revision
+    hazardous_nets: tuple[HazardousNet, ...] = ()  # nets at mains or other hazardous voltage
+    resistor_voltages: tuple[ResistorVoltage, ...] = ()  # resistors tied to them, checked
 
     @property
     def worst(self) -> Verdict:

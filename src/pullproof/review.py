@@ -12,7 +12,7 @@ import fnmatch
 import math
 import os
 import re
-from collections.abc import Iterable, Mapping, Sequence
+from collections.abc import Callable, Iterable, Mapping, Sequence
 from dataclasses import dataclass, replace
 from pathlib import Path
 
@@ -30,11 +30,20 @@ from .families.match import (
     load_part_library,
     resolve_part,
 )
+from .hazard import hazards_of, voltage_findings
 from .limits import InputPolicy
 from .nets import circuit_from_hierarchy
 from .network import Direction, Missing, PullNetwork, PullResistor, Rail
 from .provenance import Origin, Provenance, Sourced, Status
-from .results import Finding, NetworkResult, ReviewResult, Skipped, Verdict
+from .results import (
+    Finding,
+    HazardousNet,
+    NetworkResult,
+    ResistorVoltage,
+    ReviewResult,
+    Skipped,
+    Verdict,
+)
 from .rules import RULES_FILE, Rules, load_rules
 from .schematic.hierarchy import Hierarchy, load_hierarchy
 from .schematic.model import LibPin
@@ -256,8 +265,8 @@ def _check_findings(result: NetworkResult) -> list[Finding]:
                     Verdict.FAIL,
                     n.net,
                     (*(e.ref for e in n.resistor.members), *(i.ref for i in n.inputs)),
-                    f"{', '.join(n.resistor.refs)} pulls {n.net} to {n.rail.name}, above what an "
-                    f"input on it tolerates (needs {c.substituted})",
+                    f"{', '.join(n.resistor.refs)} pulls {n.net} to {n.rail.name}: "
+                    + (c.sentence or f"above what an input on it tolerates ({c.substituted})"),
                 )
             )
     return out
@@ -408,6 +417,8 @@ def review_circuit(
         if not chosen(refs) or any(_has_internal_pull(circuit, p.ref) for p in inputs):
             continue
         findings.append(_floating(net.name, refs, switches, inputs, infos))
+    hazardous, voltages = _hazards(circuit, infos, resolver, chosen)
+    findings.extend(voltage_findings(voltages))
     files = tuple(sorted(circuit.files.items()))
     review_result = ReviewResult(
         root=circuit.root,
@@ -416,9 +427,23 @@ def review_circuit(
         skipped=tuple(sorted(skipped, key=lambda s: (s.net, s.ref, s.element))),
         files=files,
         rules_file=rules.file or None,
+        hazardous_nets=hazardous,
+        resistor_voltages=voltages,
     )
     acceptances = read_acceptances(circuit, rules)
     return apply_acceptances(review_result, acceptances, whole=not select.active)
+
+
+def _hazards(
+    circuit: Circuit,
+    infos: dict[str, PartInfo],
+    resolver: Resolver,
+    chosen: Callable[[Iterable[str]], bool],
+) -> tuple[tuple[HazardousNet, ...], tuple[ResistorVoltage, ...]]:
+    """Nets at hazardous voltage, and the working-voltage check of the chosen resistors on them."""
+    found, checks = hazards_of(circuit, infos, resolver.hazard)
+    nets = tuple(h.result() for _, h in sorted(found.items()))
+    return nets, tuple(c for c in checks if chosen([c.ref]))
 
 
 def _floating(

@@ -69,7 +69,12 @@ KEYS: Mapping[str, Key] = MappingProxyType(
         "current_budget": Key("current", None, "no budget unless the design is battery-powered"),
         "bounce": Key("time", None, "only needed when a capacitor debounces a contact"),
         "edge_time": Key("time", None, "the family transition limit applies when unset"),
-        "mains_voltage": Key("voltage", "230VAC", "the most common mains supply; set yours"),
+        "mains_voltage": Key(
+            "voltage",
+            "230VAC",
+            "the most common mains supply; set yours: mains-pattern nets carry it, and resistors "
+            "on them are checked against it",
+        ),
         "mains_patterns": Key(
             "patterns",
             "MAINS,MAINS_L*,MAINS_N*,*_MAINS_L,*_MAINS_N,AC_L*,AC_N*,*_AC_L,*_AC_N,LINE_L,LINE_N,"
@@ -156,8 +161,9 @@ _NET_RANGES = MappingProxyType(
 # Pairs whose first value may not exceed the second.
 _ORDERED = (("temperature.min", "temperature.max"), ("preferred.min", "preferred.max"))
 _NET_KEYS = frozenset(
-    {"match", "margin", "i2c", "bus_capacitance", "bounce", "edge_time", "current_budget"}
-)
+    {"match", "margin", "i2c", "bus_capacitance", "capacitance", "bounce", "edge_time",
+     "current_budget"}
+)  # fmt: skip
 _SECTIONS = frozenset({"resistor", "temperature", "preferred", "i2c"})
 _GROUNDS = ("GND", "GNDA", "GNDD", "GNDPWR", "GNDREF", "AGND", "DGND", "PGND", "VSS", "0V", "EARTH")
 _GROUND_PATTERNS = ("GND*", "*_GND", "VSS*", "EARTH*", "0V", "CHASSIS*")
@@ -173,6 +179,7 @@ class RailSpec:
     v_max: Sourced | None
     ground: bool = False
     inferred: str = ""  # why a net is a supply by its function ("" when named or listed)
+    ac: bool = False  # an AC rail: the voltages are rms
 
 
 @dataclass(frozen=True)
@@ -185,6 +192,7 @@ class NetRules:
     bounce: Sourced | None
     edge_time: Sourced | None
     current_budget: Sourced | None
+    capacitance: Sourced | None = None  # F, wiring or cable on any net ([[net]] capacitance)
 
 
 @dataclass(frozen=True)
@@ -206,6 +214,7 @@ class Rules:
     rails: Mapping[str, RailSpec] = field(default_factory=lambda: MappingProxyType({}))
     nets: tuple[tuple[str, Mapping[str, Sourced | str]], ...] = ()
     accepts: tuple[RawEntry, ...] = ()  # [[accept]] entries, read by pullproof.acceptance
+    mains_dc: bool = False  # mains_voltage written with "DC"; mains is AC otherwise
 
     def get(self, key: str) -> Any:
         """The value of a rules key (Sourced, a word, or None when unset and no default)."""
@@ -248,6 +257,13 @@ class Rules:
         derived = Provenance(Origin.DERIVED, f"{bare} ± {tol.source.where}", tol.source.status)
         return RailSpec(bare, nominal, Sourced(Q_(lo, "V"), derived), Sourced(Q_(hi, "V"), derived))
 
+    def mains(self, net_name: str) -> RailSpec:
+        """The voltage of a mains-pattern net: rules key ``mains_voltage`` (AC unless "DC")."""
+        volts = self.values["mains_voltage"]
+        assert isinstance(volts, Sourced)
+        ac = not self.mains_dc
+        return RailSpec(_bare(net_name), volts, volts, volts, ac=ac)
+
     def is_mains(self, net_name: str) -> bool:
         """True when the net name matches a mains pattern (case-insensitive glob)."""
         name = _bare(net_name).upper()
@@ -263,6 +279,7 @@ class Rules:
             "bounce": self.values["bounce"],
             "edge_time": self.values["edge_time"],
             "current_budget": self.values["current_budget"],
+            "capacitance": None,  # only a [[net]] entry states a net's wiring capacitance
         }
         name = _bare(net_name).upper()
         if not merged["i2c"] and re.search(r"(^|[^A-Z])(I2C|SDA|SCL)", name):
@@ -277,6 +294,7 @@ class Rules:
             bounce=merged["bounce"],
             edge_time=merged["edge_time"],
             current_budget=merged["current_budget"],
+            capacitance=merged["capacitance"],
         )
 
 
@@ -451,7 +469,9 @@ def _build(reader: _Reader | None, doc: Mapping[str, Any]) -> Rules:
     nets = _nets(reader, flat.get("net", []))
     accepts = _raw_entries(reader, flat.get("accept", []), "accept")
     name = reader.path.name if reader else ""
-    return Rules(name, MappingProxyType(values), rails, nets, accepts)
+    mains_text = str(flat.get("mains_voltage", KEYS["mains_voltage"].default))
+    mains_dc = re.search(r"DC\s*$", mains_text, re.I) is not None
+    return Rules(name, MappingProxyType(values), rails, nets, accepts, mains_dc=mains_dc)
 
 
 def _raw_entries(reader: _Reader | None, entries: Any, name: str) -> tuple[RawEntry, ...]:
@@ -506,11 +526,12 @@ def _rails(reader: _Reader | None, table: Any, values: Mapping[str, Any]) -> Map
         dotted = f"rails.{name}"
         entry = spec if isinstance(spec, dict) else {"nominal": spec}
         for key in entry:
-            if key not in ("nominal", "tolerance"):
+            if key not in ("nominal", "tolerance", "ac"):
                 raise reader.unknown(
-                    f"{dotted}.{key}", [f"{dotted}.nominal", f"{dotted}.tolerance"]
+                    f"{dotted}.{key}", [f"{dotted}.{k}" for k in ("nominal", "tolerance", "ac")]
                 )
         nominal = reader.value(dotted, "voltage", entry.get("nominal", ""))
+        ac = _rail_is_ac(reader, dotted, entry)
         tol = (
             reader.value(f"{dotted}.tolerance", "percent", entry["tolerance"], _FRACTION)
             if "tolerance" in entry
@@ -522,9 +543,19 @@ def _rails(reader: _Reader | None, table: Any, values: Mapping[str, Any]) -> Map
         lo, hi = sorted((volts * (1 - frac), volts * (1 + frac)))
         derived = Provenance(Origin.DERIVED, f"{nominal.source.where} ± {tol.source.where}")
         out[name] = RailSpec(
-            name, nominal, Sourced(Q_(lo, "V"), derived), Sourced(Q_(hi, "V"), derived), volts == 0
-        )
+            name, nominal, Sourced(Q_(lo, "V"), derived), Sourced(Q_(hi, "V"), derived), volts == 0,
+            ac=ac,
+        )  # fmt: skip
     return MappingProxyType(out)
+
+
+def _rail_is_ac(reader: _Reader, dotted: str, entry: Mapping[str, Any]) -> bool:
+    """A rail is AC when its nominal says so ("230VAC") or the entry has ``ac = true``."""
+    flag = entry.get("ac", False)
+    if not isinstance(flag, bool):
+        raise reader.error(f"{dotted}.ac", f"rules key '{dotted}.ac': write true or false")
+    text = str(entry.get("nominal", ""))
+    return flag or parse_voltage_ac(text, field=dotted)[1]
 
 
 _NET_KINDS = MappingProxyType(
@@ -532,6 +563,7 @@ _NET_KINDS = MappingProxyType(
         "margin": "margin",
         "i2c": "i2c",
         "bus_capacitance": "capacitance",
+        "capacitance": "capacitance",
         "bounce": "time",
         "edge_time": "time",
         "current_budget": "current",

@@ -20,6 +20,7 @@ __all__ = [
     "Item",
     "across",
     "band",
+    "capacitance",
     "dedupe",
     "delta_t",
     "eng",
@@ -88,6 +89,9 @@ def default(value: float, unit: str, where: str, reason: str, status: Status) ->
 
 
 LEVEL_HINT = "give the part a logic family (field 'pullproof.family') or a part-library entry"
+C_IN_HINT = (
+    "add field 'pullproof.c_in' (e.g. 10pF) on the part, a logic family or a part-library entry"
+)
 
 GROUND = default(0.0, "V", "ground (0 V)", "the far side of the switch or driver", Status.DEFAULT)
 
@@ -188,6 +192,39 @@ def supply_cases(
     v_rail = rail.v_min if rail_low else rail.v_max
     at = f"{rail.name} at {fmt(v_rail, 'V')}"
     return [(v_rail, c, f"{at}, {inp.ref} levels at VDD = {fmt(c.vdd, 'V')}") for c in inp.corners]
+
+
+@dataclass(frozen=True)
+class Capacitance:
+    """The capacitance an edge on the net charges: its total and every term with its source."""
+
+    farads: float
+    terms: tuple[Term, ...]
+    missing: tuple[Missing, ...]
+
+
+def capacitance(network: PullNetwork) -> Capacitance:
+    """C on the net: an I2C bus figure (pins and wiring together) when the net is a bus line,
+    else the rules' wiring capacitance plus every input's C_in; fitted capacitors always add.
+    """
+    terms: list[Term] = []
+    missing: list[Missing] = []
+    bus = network.rules.bus_capacitance
+    if bus is not None:
+        terms.append(Term("C_bus", bus))
+    else:
+        wiring = network.rules.wiring_capacitance
+        if wiring is not None:
+            terms.append(Term("C_wiring", wiring))
+        for inp in network.inputs:
+            c = worst_input_value(inp, "c_in")
+            if c is None:
+                missing.extend(input_missing(inp, "C_in", C_IN_HINT))
+            else:
+                terms.append(Term(f"C_in({inp.ref} pin {inp.pin})", c))
+    terms.extend(Term(f"C({cap.ref})", cap.farads) for cap in network.capacitors)
+    total = sum(t.value.magnitude("F") for t in terms)
+    return Capacitance(total, tuple(terms), dedupe(missing))
 
 
 def input_missing(inp: InputOnNet, what: str, hint: str) -> tuple[Missing, ...]:

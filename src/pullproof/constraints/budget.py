@@ -52,5 +52,6 @@ def current_budget(network: PullNetwork) -> tuple[Bound | Check, ...]:
             source=_SOURCE,
             explanation=why,
             relax="a larger current budget in the rules",
+            says=f"at which the pull draws no more than the {fmt(budget, 'A')} budget while held",
         ),
     )

@@ -63,6 +63,7 @@ def contact_rating(network: PullNetwork) -> tuple[Bound | Check, ...]:
                 explanation=why,
                 relax=f"a switch rated for more current than {fmt(sw.contact_max, 'A')}",
                 corner=f"{sw.ref} closed, V = {eng(span.volts, 'V')}",
+                says=f"at which {sw.ref} carries no more than its rated {fmt(sw.contact_max, 'A')}",
             )
         )
     return tuple(out)
@@ -107,4 +108,5 @@ def _wetting(network: PullNetwork, sw: SwitchOnNet) -> Bound:
         explanation=why,
         relax="a switch with a lower wetting current (gold-plated, low-level contacts)",
         corner=f"{sw.ref} closed, V = {eng(span.volts, 'V')}",
+        says=f"at which {sw.ref} still gets its {fmt(sw.wetting_min, 'A')} wetting current",
     )

@@ -105,6 +105,8 @@ def debounce_holdoff(network: PullNetwork) -> tuple[Bound | Check, ...]:
                 relax="a larger debounce capacitor, a switch that bounces for less time, or a "
                 "shorter hold-off in the rules",
                 corner=f"{sw.ref} released, V = {eng(v, 'V')}",
+                says=f"at which the RC holds the input through {sw.ref}'s "
+                f"{fmt(t_b, 's')} of bounce",
             )
         )
     return tuple(out)

@@ -105,6 +105,10 @@ def _sink(network: PullNetwork, d: DriverOnNet) -> Bound | Check:
             all_terms,
             _SOURCE,
             why + " Here the inputs alone need more than the driver sinks.",
+            sentence=(
+                f"{d.ref} pin {d.pin} sinks at most {fmt(d.i_ol, 'A')}, no more than the "
+                f"{eng(i_in, 'A')} the inputs alone push into it"
+            ),
         )
     return Bound(
         constraint="driver-sink",
@@ -119,6 +123,10 @@ def _sink(network: PullNetwork, d: DriverOnNet) -> Bound | Check:
         explanation=why,
         relax="a driver with a stronger guaranteed sink current or a lower rail voltage",
         corner=f"{d.ref} pin {d.pin} on",
+        says=(
+            f"at which {d.ref} pin {d.pin} still sinks the pull and input current within its "
+            f"{fmt(d.i_ol, 'A')} at {fmt(d.v_ol, 'V')}"
+        ),
     )
 
 
@@ -155,6 +163,7 @@ def _i2c_sink(network: PullNetwork, mode: str) -> Bound:
         explanation=why,
         relax="Fast-mode Plus devices (20 mA sink) or a lower bus voltage",
         corner=f"{mode}-mode, VDD = {fmt(vdd, 'V')}",
+        says=f"at which every bus device pulls the line below {fmt(vol, 'V')} with {fmt(iol, 'A')}",
     )
 
 
@@ -223,6 +232,10 @@ def _opto(network: PullNetwork, d: DriverOnNet) -> Bound | Check:
             all_terms,
             _SOURCE,
             why + " Here the aged transistor cannot even sink the inputs' current.",
+            sentence=(
+                f"the aged {d.ref} sinks only {eng(sink, 'A')}, no more than the "
+                f"{eng(i_in, 'A')} the inputs alone push into it"
+            ),
         )
     return Bound(
         constraint="opto-output",
@@ -237,4 +250,5 @@ def _opto(network: PullNetwork, d: DriverOnNet) -> Bound | Check:
         explanation=why,
         relax="more LED current, an optocoupler with a higher minimum CTR, or a lower rail",
         corner=f"{d.ref} on at end of life",
+        says=f"at which the aged {d.ref} still sinks the pull and input current in saturation",
     )

@@ -1,14 +1,17 @@
 """Edges made by the pull must cross the undefined band quickly enough.
 
-An RC step response V(t) = V·(1 − e^(−t/RC)) rises from V_IL to V_IH in
-t = RC·ln((V − V_IL)/(V − V_IH)); a pull-down's falling edge takes RC·ln(V_IH/V_IL).
-So R_hi ≤ t_max / (C · ln(…)). t_max is the rules' edge time or, for inputs that
-are not Schmitt triggers, the family's longest allowed transition; Schmitt inputs
-are exempt from the family limit. On an I2C line the bus form of UM10204 §7.1
-eq. (1) applies: Rp(max) = t_r / (0.8473 · C_b).
+An RC step response from V_0 toward V reaches V_1 after t = RC·ln((V − V_0)/(V − V_1))
+(first-order RC step response). A pull-up's rising edge ends at V_IH,min and starts where
+the driver that held the line low leaves it (its V_OL or V_CE(sat)), else at V_IL,max; a
+pull-down's falling edge runs from V_IH,min to V_IL,max (see :mod:`._rc`). So
+R_hi ≤ t_max / (C · ln(…)). t_max is the rules' edge time or, for inputs that are not
+Schmitt triggers, the family's longest allowed transition; Schmitt inputs are exempt
+from the family limit. On an I2C line the bus form of UM10204 §7.1 eq. (1) applies:
+Rp(max) = t_r / (0.8473 · C_b).
 
-Capacitance: the rules' bus capacitance when given (it stands for the pins and the
-wiring), else the sum of the inputs' C_in; capacitors fitted on the net always add.
+Capacitance: on an I2C line the bus capacitance (it stands for the pins and the
+wiring), else the rules' wiring capacitance plus the inputs' C_in; capacitors fitted
+on the net always add. Every term keeps its source.
 Leakage is ignored here (it only shifts the final level; see high-level-holds).
 """
 
@@ -21,6 +24,7 @@ from ..provenance import Sourced, Status
 from ..results import Bound, BoundKind, Check, Term
 from ._common import (
     LEVEL_HINT,
+    capacitance,
     default,
     eng,
     fmt,
@@ -30,6 +34,7 @@ from ._common import (
     unevaluated,
     worst_input_value,
 )
+from ._rc import edge, edge_start
 
 __all__ = ["I2C_RISE_CONSTANT", "edge_rate"]
 
@@ -37,33 +42,11 @@ __all__ = ["I2C_RISE_CONSTANT", "edge_rate"]
 I2C_RISE_CONSTANT = 0.8473
 # UM10204 bus timing table, maximum rise time t_r (from memory).
 _I2C_TR = {"standard": 1000e-9, "fast": 300e-9, "fast-plus": 120e-9}
-_FORMULA_UP = "R_hi ≤ t_max / (C · ln((V − V_IL,max)/(V − V_IH,min)))"
+_FORMULA_UP = "R_hi ≤ t_max / (C · ln((V − V_start)/(V − V_IH,min)))"
 _FORMULA_DOWN = "R_hi ≤ t_max / (C · ln(V_IH,min / V_IL,max))"
 _I2C_FORMULA = "Rp(max) = t_r / (0.8473 · C_b)"
 _SOURCE = "first-order RC step response (circuit theory)"
 _RELAX = "less capacitance on the net, a Schmitt-trigger input, or a longer allowed edge time"
-
-
-def _capacitance(network: PullNetwork) -> tuple[float, list[Term], list[Missing]]:
-    terms: list[Term] = []
-    missing: list[Missing] = []
-    total = 0.0
-    bus = network.rules.bus_capacitance
-    if bus is not None:
-        total += bus.magnitude("F")
-        terms.append(Term("C_bus", bus))
-    else:
-        for inp in network.inputs:
-            c = worst_input_value(inp, "c_in")
-            if c is None:
-                missing.extend(input_missing(inp, "C_in", LEVEL_HINT))
-            else:
-                total += c.magnitude("F")
-                terms.append(Term(f"C_in({inp.ref} pin {inp.pin})", c))
-    for cap in network.capacitors:
-        total += cap.farads.magnitude("F")
-        terms.append(Term(f"C({cap.ref})", cap.farads))
-    return total, terms, missing
 
 
 def edge_rate(network: PullNetwork) -> tuple[Bound | Check, ...]:
@@ -76,7 +59,7 @@ def edge_rate(network: PullNetwork) -> tuple[Bound | Check, ...]:
         return tuple(out)  # nothing ever moves the line: the pull makes no edges
     best: Bound | None = None
     up = network.direction is Direction.UP
-    formula = _FORMULA_UP if up else _FORMULA_DOWN
+    start = edge_start(network)
     for inp in network.inputs:
         t_max: Sourced | None = rules.edge_time_max
         if t_max is None and not inp.schmitt and not rules.i2c_mode:
@@ -87,10 +70,12 @@ def edge_rate(network: PullNetwork) -> tuple[Bound | Check, ...]:
             f"{inp.ref} pin {inp.pin} must see the {'rising' if up else 'falling'} edge cross "
             f"its undefined band within {fmt(t_max, 's')}."
         )
-        cap, cterms, missing = _capacitance(network)
+        cap = capacitance(network)
+        missing = list(cap.missing)
         if not inp.corners or any(c.vih_min is None or c.vil_max is None for c in inp.corners):
             missing.extend(input_missing(inp, "V_IH,min and V_IL,max", LEVEL_HINT))
         if missing:
+            formula = _FORMULA_UP if up else _FORMULA_DOWN
             return (
                 *out,
                 unevaluated(
@@ -104,39 +89,25 @@ def edge_rate(network: PullNetwork) -> tuple[Bound | Check, ...]:
                 ),
             )
         for v, lv, corner in supply_cases(network, inp, rail_low=True):
-            assert lv.vih_min is not None and lv.vil_max is not None
-            vih, vil = lv.vih_min.magnitude("V"), lv.vil_max.magnitude("V")
-            if up:
-                vv = v.magnitude("V")
-                ratio = (vv - vil) / (vv - vih) if vv > vih else math.inf
-                vs = fmt(v, "V")
-                sub_ln = f"ln(({vs} − {fmt(lv.vil_max, 'V')}) / ({vs} − {fmt(lv.vih_min, 'V')}))"
-            else:
-                ratio = vih / vil if vil > 0 else math.inf
-                sub_ln = f"ln({fmt(lv.vih_min, 'V')} / {fmt(lv.vil_max, 'V')})"
-            ln = math.log(ratio)
-            ohms = 0.0 if math.isinf(ln) else t_max.magnitude("s") / (cap * ln)
+            e = edge(network, v if up else None, lv, inp.ref, start)
+            ohms = 0.0 if math.isinf(e.ln) else t_max.magnitude("s") / (cap.farads * e.ln)
             if best is not None and best.ohms is not None and ohms >= best.ohms:
                 continue
-            terms = (
-                Term("t_max", t_max),
-                *cterms,
-                Term(f"V_IH,min({inp.ref})", lv.vih_min),
-                Term(f"V_IL,max({inp.ref})", lv.vil_max),
-            )
             best = Bound(
                 constraint="edge-rate",
                 title="Edge through the undefined band",
                 kind=BoundKind.MAX,
                 ohms=ohms,
                 hard=True,
-                formula=formula,
-                substituted=f"{fmt(t_max, 's')} / ({eng(cap, 'F')} · {sub_ln})",
-                terms=((Term("V", v), *terms) if up else terms),
+                formula=f"R_hi ≤ t_max / (C · {e.formula})",
+                substituted=f"{fmt(t_max, 's')} / ({eng(cap.farads, 'F')} · {e.substituted})",
+                terms=(Term("t_max", t_max), *cap.terms, *e.terms),
                 source=_SOURCE,
-                explanation=why,
+                explanation=f"{why} {start.why}" if up else why,
                 relax=_RELAX,
-                corner=f"{inp.ref} pin {inp.pin}: {corner}",
+                corner=f"{inp.ref} pin {inp.pin}: {corner}; edge {e.start}",
+                says=f"at which the edge crosses the band of {inp.ref} pin {inp.pin} within "
+                f"{fmt(t_max, 's')}",
             )
     return tuple(out) if best is None else (*out, best)
 
@@ -150,7 +121,8 @@ def _i2c(network: PullNetwork, mode: str) -> Bound:
         "bus timing table value, from memory",
         Status.FROM_MEMORY,
     )
-    cap, cterms, missing = _capacitance(network)
+    found = capacitance(network)
+    cap, cterms, missing = found.farads, found.terms, list(found.missing)
     if missing or cap <= 0:
         if cap <= 0 and not missing:
             missing.append(
@@ -182,4 +154,5 @@ def _i2c(network: PullNetwork, mode: str) -> Bound:
         explanation=why,
         relax="less bus capacitance (shorter wiring, fewer devices) or a slower bus mode",
         corner=f"{mode}-mode",
+        says=f"at which the bus rises from 0.3·VDD to 0.7·VDD within its {fmt(tr, 's')} t_r",
     )

@@ -145,8 +145,20 @@ def _hold(network: PullNetwork, *, up: bool) -> tuple[Bound | Check, ...]:
                     "margin" + (", or a higher minimum rail voltage" if up else "")
                 ),
                 corner=f"worst at {inp.ref} pin {inp.pin}: {corner}",
+                says=(
+                    f"at which the leakage still leaves {inp.ref} pin {inp.pin} above its "
+                    f"{fmt(thr, 'V')} V_IH,min{_with(m)}"
+                    if up
+                    else f"at which the current out of the inputs still leaves {inp.ref} pin "
+                    f"{inp.pin} below its {fmt(thr, 'V')} V_IL,max{_with(m)}"
+                ),
             )
     return () if best is None else (best,)
+
+
+def _with(margin: Sourced) -> str:
+    volts = margin.magnitude("V")
+    return f" with the {fmt(margin, 'V')} margin" if volts > 0 else ""
 
 
 def _terms(

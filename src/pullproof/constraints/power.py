@@ -69,6 +69,10 @@ def resistor_power(network: PullNetwork) -> tuple[Bound | Check, ...]:
             explanation=_POWER_WHY,
             relax="a larger resistor package (higher power rating) or a lower rail voltage",
             corner=f"V = {eng(span.volts, 'V')} across the resistor",
+            says=(
+                f"at which {'/'.join(res.refs)} dissipates no more than its derated "
+                f"{eng(allowed, 'W')} while the line is held the other way"
+            ),
         ),
     )
 
@@ -113,16 +117,24 @@ def working_voltage(network: PullNetwork) -> tuple[Bound | Check, ...]:
         )
     assert isinstance(span, Span) and res.working_voltage is not None
     limit = res.working_voltage.magnitude("V")
+    ok = span.volts <= limit
+    who, wv = "/".join(res.refs), fmt(res.working_voltage, "V")
+    sentence = (
+        f"at most {eng(span.volts, 'V')} sits across {who}, within its {wv} working voltage"
+        if ok
+        else f"up to {eng(span.volts, 'V')} sits across {who}, above its {wv} working voltage"
+    )
     return (
         Check(
             constraint="working-voltage",
             title="Resistor working voltage",
-            ok=span.volts <= limit,
+            ok=ok,
             hard=True,
             formula=_WV_FORMULA,
             substituted=f"{span.text} ≤ {fmt(res.working_voltage, 'V')}",
             terms=(*span.terms, Term("V_working", res.working_voltage)),
             source=_WV_SOURCE,
             explanation=_WV_WHY,
+            sentence=sentence,
         ),
     )

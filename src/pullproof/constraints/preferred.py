@@ -36,6 +36,7 @@ def preferred_range(network: PullNetwork) -> tuple[Bound | Check, ...]:
                 source=_SOURCE,
                 explanation="The project prefers pull resistors in this range.",
                 relax="widen the preferred range in the rules",
+                says=f"where the preferred range {'starts' if kind is BoundKind.MIN else 'ends'}",
             )
         )
     return tuple(out)

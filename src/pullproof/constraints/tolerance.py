@@ -42,6 +42,7 @@ def _check(network: PullNetwork, inp: InputOnNet) -> Check:
                 (),
                 _SOURCE,
                 why,
+                sentence=f"{inp.ref} is powered from {network.rail.name}, the pull rail itself",
             )
         return Check(
             "input-tolerance",
@@ -60,17 +61,27 @@ def _check(network: PullNetwork, inp: InputOnNet) -> Check:
                     "add the input's maximum input voltage to its family or part-library entry",
                 ),
             ),
+            sentence=f"the highest voltage {inp.ref} pin {inp.pin} tolerates is unknown",
         )
     v, lv, _ = min(cases, key=lambda c: c[1].v_in_max.magnitude("V") - c[0].magnitude("V"))  # type: ignore[union-attr]
     assert lv.v_in_max is not None
+    ok = v.magnitude("V") <= lv.v_in_max.magnitude("V")
+    rail, limit = fmt(v, "V"), fmt(lv.v_in_max, "V")
+    pin = f"{inp.ref} pin {inp.pin}"
+    sentence = (
+        f"the pull rail reaches at most {rail} and {pin} tolerates {limit}"
+        if ok
+        else f"the pull rail reaches {rail} but {pin} tolerates at most {limit}"
+    )
     return Check(
         constraint="input-tolerance",
         title=title,
-        ok=v.magnitude("V") <= lv.v_in_max.magnitude("V"),
+        ok=ok,
         hard=True,
         formula=_FORMULA,
         substituted=f"{fmt(v, 'V')} ≤ {fmt(lv.v_in_max, 'V')}",
         terms=(Term("V_max", v), Term(f"V_in,max({inp.ref})", lv.v_in_max)),
         source=_SOURCE,
         explanation=why,
+        sentence=sentence,
     )

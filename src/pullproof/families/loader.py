@@ -188,6 +188,8 @@ class InputModel:
 
     ``overrides`` holds values written on the part itself (fields), which replace the
     family's at every supply; ``internal_pull`` an internal pull range (min, max) in ohms.
+    ``room_temperature_only`` selects a family's 25 °C input currents (set when the rules'
+    temperature span stays at 25 °C).
     """
 
     family: Family
@@ -248,10 +250,11 @@ class InputModel:
             out["max_transition"] = Sourced(
                 Q_(found[0], "s"), fam.source("transition", _join(found[1], outside))
             )
-        hot = not self.room_temperature_only
         for key in ("i_high", "i_low"):
-            value = getattr(fam, key if hot or getattr(fam, f"{key}_25c") is None else f"{key}_25c")
-            out[key] = None if value is None else Sourced(value, fam.source(key, outside))
+            value, which = self._current(key)
+            out[key] = (
+                None if value is None else Sourced(value, fam.source(key, _join(which, outside)))
+            )
         out["c_in"] = None if fam.c_in is None else Sourced(fam.c_in, fam.source("c_in"))
         out["v_in_max"] = None
         if fam.v_in_max is not None:
@@ -262,6 +265,17 @@ class InputModel:
             if key in out:
                 out[key] = value
         return InputLevels(vdd=vdd_s, **out)
+
+    def _current(self, key: str) -> tuple[Any, str]:
+        """The input current to use and which figure it is: the 25 °C figure only when the
+        rules' temperature span stays at 25 °C, else the figure over temperature."""
+        fam = self.family
+        cold = getattr(fam, f"{key}_25c")
+        if cold is None:
+            return getattr(fam, key), ""
+        if self.room_temperature_only:
+            return cold, "the 25 °C figure: the rules' temperature span stays at 25 °C"
+        return getattr(fam, key), "the figure over temperature: the rules' span leaves 25 °C"
 
     def _volts(
         self, rows: tuple[LevelRow, ...], key: str, v: float, group: str, outside: str

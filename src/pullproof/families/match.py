@@ -94,6 +94,7 @@ FIELDS: Mapping[str, FieldDoc] = MappingProxyType(
         "pullproof.i_high": FieldDoc("logic input", "current into a pin held high", "1uA"),
         "pullproof.i_low": FieldDoc("logic input", "current out of a pin held low", "0.4mA"),
         "pullproof.v_in_max": FieldDoc("logic input", "highest voltage the pin tolerates", "5.5V"),
+        "pullproof.c_in": FieldDoc("logic input", "input capacitance (overrides family)", "10pF"),
         "pullproof.internal_pull": FieldDoc(
             "MCU", "internal pull firmware enables: [up|down] min..max, or none", "up 30k..50k"
         ),
@@ -573,6 +574,7 @@ _INPUT_FIELDS: Mapping[str, tuple[str, Callable[..., Any]]] = MappingProxyType(
         "pullproof.i_high": ("i_high", parse_current),
         "pullproof.i_low": ("i_low", parse_current),
         "pullproof.v_in_max": ("v_in_max", parse_voltage),
+        "pullproof.c_in": ("c_in", parse_capacitance),
     }
 )
 _YES = frozenset({"yes", "true", "1", "y"})

@@ -3,7 +3,18 @@
 from __future__ import annotations
 
 from ..eseries import format_ohms
-from ..results import AcceptanceMark, Changes, Finding, NetworkResult, ReviewResult, Verdict
+from ..hazard import safety_caution
+from ..results import (
+    AcceptanceMark,
+    Changes,
+    Figure,
+    Finding,
+    NetworkResult,
+    OperatingPoint,
+    ReviewResult,
+    Verdict,
+)
+from .format import format_quantity
 from .safe_text import for_terminal
 
 __all__ = ["changes_table", "finding_line", "network_line", "review_table"]
@@ -50,6 +61,28 @@ def _table(rows: list[list[str]]) -> str:
         if n == 0:
             lines.append("  ".join("-" * w for w in widths))
     return "\n".join(lines) + "\n"
+
+
+def _fig(f: Figure) -> str:
+    if f.value is not None:
+        return format_quantity(f.value.value).replace("\u00a0", " ")
+    return "unknown" if f.missing else ""
+
+
+def operating_line(op: OperatingPoint) -> str:
+    """The operating point at one resistance in one short line."""
+    parts = []
+    if op.current_max.value is not None:
+        parts.append(f"{_fig(op.current_max)} and {_fig(op.power)} while held the other way")
+    elif op.current_max.missing:
+        parts.append("current while held unknown")
+    idle = _fig(op.idle)
+    if idle:
+        parts.append("idle level unknown" if idle == "unknown" else f"idles at {idle}")
+    edge = _fig(op.edge)
+    if edge:
+        parts.append(f"{'rise time' if op.edge.symbol == 't_r' else 'edge'} {edge}")
+    return "; ".join(parts) or "nothing to show"
 
 
 def network_line(r: NetworkResult) -> str:
@@ -113,6 +146,10 @@ def review_table(result: ReviewResult) -> str:
                 ]
             )
         out.append(_table(rows))
+        out.append("\noperating point at the fitted value (worst case over its band):\n")
+        for r in order:
+            if r.operating is not None:
+                out.append(f"  {r.network.net}: {operating_line(r.operating)}\n")
     else:
         out.append("no pull networks found\n")
     if result.findings:
@@ -120,6 +157,15 @@ def review_table(result: ReviewResult) -> str:
         for f in sorted(result.findings, key=lambda f: (-f.severity.rank, f.net)):
             word = _verdict(f.severity, f.accepted)
             out.append(f"  {word:10} {finding_line(f)}\n")
+    caution = safety_caution(result)
+    if caution:
+        out.append("\nsafety:\n")
+        for near in (r.network for r in order if r.network.mains_adjacent):
+            out.append(f"  {near.net} is next to hazardous voltage: {near.mains_reason}\n")
+        for c in result.resistor_voltages:
+            mark = {True: "ok", False: "FAIL", None: "unknown"}[c.ok]
+            out.append(f"  {c.ref:6} {mark:7} {c.text}\n")
+        out.append(f"  {caution}\n")
     if result.skipped:
         out.append("\nnot judged as logic pulls:\n")
         for s in sorted(result.skipped, key=lambda s: (s.ref, s.element)):

@@ -20,6 +20,7 @@ __all__ = [
     "format_percent",
     "format_quantity",
     "format_sourced",
+    "format_value",
     "format_window",
 ]
 
@@ -62,12 +63,28 @@ def format_percent(fraction: float, sig: int = 3) -> str:
     return f"{_digits(fraction * 100.0, sig)}{NBSP}%"
 
 
-def format_margin(margin: float | None) -> str:
-    """A relative margin (R_lo / min − 1) as a signed percentage, or "—" when unbounded."""
+def format_margin(margin: float | None, side: str = "below") -> str:
+    """How far the band sits inside one window edge, in words a reader can use.
+
+    ``margin`` is R_lo / min − 1 for the lower edge (``side`` "below") and max / R_hi − 1
+    for the upper edge ("above"). Twice the limit or more reads as a multiple ("408× the
+    minimum"), less as a percentage ("23 % above the minimum"); a violated edge says so.
+    """
     if margin is None:
         return "—"
-    sign = "+" if margin >= 0 else ""
-    return f"{sign}{format_percent(margin)}"
+    ratio = 1.0 + margin  # R_lo / min, or max / R_hi
+    if side == "below":
+        if margin >= 1.0:
+            return f"R_lo is {_digits(ratio)}×{NBSP}the minimum"
+        if margin >= 0:
+            return f"R_lo is {format_percent(margin)} above the minimum"
+        return f"R_lo is {format_percent(-margin)} below the minimum: not met"
+    if margin >= 1.0:
+        return f"the maximum is {_digits(ratio)}×{NBSP}R_hi"
+    if margin >= 0:
+        return f"the maximum is {format_percent(margin)} above R_hi"
+    over = 1.0 / ratio - 1.0 if ratio > 0 else float("inf")
+    return f"R_hi is {format_percent(over)} above the maximum: not met"
 
 
 def format_window(window: tuple[float | None, float | None]) -> str:
@@ -106,6 +123,17 @@ def format_quantity(value: Any) -> str:
         if value.check(ureg(base).dimensionality):
             return engineering(float(value.to(base).magnitude), symbol)
     return f"{value:~P}"
+
+
+_SYMBOL = {"A": "A", "W": "W", "V": "V", "s": "s", "F": "F", "ohm": "Ω"}
+
+
+def format_value(x: float, unit: str) -> str:
+    """A float in a base unit ("A", "W", "V", "s", "F", "ohm") as :func:`format_quantity`
+    prints the same quantity, without building one (the operating-point tables hold many)."""
+    if unit == "V" and 0.1 <= abs(x) < 1000:
+        return f"{_digits(x, 4)}{NBSP}V"
+    return engineering(x, _SYMBOL[unit])
 
 
 def format_sourced(value: Sourced) -> str:

@@ -15,7 +15,7 @@ import hashlib
 import os
 import re
 from collections.abc import Iterable
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from functools import lru_cache
 from importlib import resources
 from pathlib import Path
@@ -26,9 +26,21 @@ from markupsafe import Markup
 
 from .. import __version__
 from ..errors import PullproofError
+from ..eseries import format_rkm as _format_rkm
+from ..hazard import safety_caution
 from ..network import Missing, PullNetwork
 from ..provenance import Sourced
-from ..results import Bound, BoundKind, Check, Finding, NetworkResult, ReviewResult, Verdict
+from ..results import (
+    Bound,
+    BoundKind,
+    Check,
+    Figure,
+    Finding,
+    NetworkResult,
+    PointValues,
+    ReviewResult,
+    Verdict,
+)
 from ..textfile import write_report
 from .chart import chart_text, window_chart
 from .format import (
@@ -36,8 +48,12 @@ from .format import (
     format_ohms,
     format_percent,
     format_sourced,
+    format_value,
     format_window,
 )
+
+# E-series values recur across networks; the code is the same each time.
+format_rkm = lru_cache(maxsize=4096)(_format_rkm)
 
 __all__ = [
     "FileDigest",
@@ -112,6 +128,40 @@ class CircuitRow:
 
 
 @dataclass(frozen=True)
+class PointRow:
+    """One row of the operating-point table: a resistance and its figures over its band."""
+
+    label: str  # "fitted R10", "E24 pick", or "" for another candidate
+    value: str  # "10 kΩ"
+    rkm: str  # "10K"
+    band: str  # "9.43 kΩ … 10.6 kΩ"
+    cells: tuple[str, ...]  # one per column, "—" where the figure does not apply
+    fitted: bool
+    pick: bool
+
+
+@dataclass(frozen=True)
+class FigureView:
+    """A column of the operating-point table: what it is, and its formula at the fitted value."""
+
+    title: str
+    formula: str
+    substituted: str
+    value: str
+    terms: tuple[TermRef, ...]
+    note: str
+    missing: tuple[Missing, ...]
+
+
+@dataclass(frozen=True)
+class OperatingView:
+    """The operating-point table of one network."""
+
+    columns: tuple[FigureView, ...]
+    rows: tuple[PointRow, ...]
+
+
+@dataclass(frozen=True)
 class NetworkView:
     """Everything the template shows for one network."""
 
@@ -124,6 +174,7 @@ class NetworkView:
     chart_text: str
     value_text: str
     refs_text: str
+    operating: OperatingView | None = None
 
 
 @dataclass(frozen=True)
@@ -138,9 +189,20 @@ class _Registry:
 
     def __init__(self) -> None:
         self._index: dict[tuple[str, str, str, str, str], ProvEntry] = {}
+        # Formatting a quantity is slow and the same Sourced objects recur across limits,
+        # checks and the operating point: format each once (keyed by identity; the result
+        # holds them alive while the registry is in use).
+        self._texts: dict[int, tuple[Sourced, str]] = {}
+
+    def _text(self, value: Sourced) -> str:
+        known = self._texts.get(id(value))
+        if known is None or known[0] is not value:
+            known = (value, format_sourced(value))
+            self._texts[id(value)] = known
+        return known[1]
 
     def ref(self, symbol: str, value: Sourced) -> TermRef:
-        text = format_sourced(value)
+        text = self._text(value)
         src = value.source
         key = (symbol, text, src.where, src.status.value, src.reason)
         entry = self._index.get(key)
@@ -297,7 +359,11 @@ def _rows(nr: NetworkResult, reg: _Registry) -> tuple[LimitRow, ...]:
         )
     for c in nr.checks:
         terms = tuple(reg.ref(t.symbol, t.value) for t in c.terms)
-        outcome = {True: "holds", False: "violated", None: "a value is missing"}[c.ok]
+        outcome = (
+            f"{c.sentence[:1].upper()}{c.sentence[1:]}."
+            if c.sentence
+            else {True: "holds", False: "violated", None: "a value is missing"}[c.ok]
+        )
         out.append(
             LimitRow(
                 c.title,
@@ -319,10 +385,60 @@ def _rows(nr: NetworkResult, reg: _Registry) -> tuple[LimitRow, ...]:
     return tuple(out)
 
 
+_COLUMNS = (
+    "Current while held",
+    "Least contact current",
+    "Dissipation while held",
+    "Idle level",
+    "Edge time",
+)
+
+
+def _cell(f: Figure) -> str:
+    number = f.number
+    if number is not None:
+        return format_value(number, f.unit)
+    return "unknown" if f.missing else "—"
+
+
+def _operating(nr: NetworkResult, reg: _Registry) -> OperatingView | None:
+    """The fitted value's operating point, then every recommended candidate's."""
+    op = nr.operating
+    if op is None:
+        return None
+    columns = []
+    for title, f in zip(_COLUMNS, op.figures, strict=True):
+        title = "Rise time (I2C)" if f.symbol == "t_r" else title
+        columns.append(
+            FigureView(title, f.formula, f.substituted, _cell(f),
+                       tuple(reg.ref(t.symbol, t.value) for t in f.terms), f.note, f.missing)
+        )  # fmt: skip
+    refs = "/".join(nr.network.resistor.refs)
+    fitted = _point_row(op.values(), f"fitted {refs}", fitted=True, pick=False)
+    rows = [replace(fitted, cells=tuple(_cell(f) for f in op.figures))]  # "unknown" vs "—"
+    rec = nr.recommendation
+    if rec is not None:
+        for p in rec.points:
+            pick = rec.pick is not None and p.ohms == rec.pick
+            label = f"{rec.series} pick" if pick else ""
+            rows.append(_point_row(p, label, fitted=False, pick=pick))
+    return OperatingView(tuple(columns), tuple(rows))
+
+
+def _point_row(p: PointValues, label: str, *, fitted: bool, pick: bool) -> PointRow:
+    cells = tuple(
+        "—" if x is None else format_value(x, unit)
+        for x, unit in zip(p.figures, PointValues.UNITS, strict=True)
+    )
+    band = f"{format_ohms(p.band[0])} … {format_ohms(p.band[1])}"
+    return PointRow(label, format_ohms(p.ohms), format_rkm(p.ohms), band, cells, fitted, pick)
+
+
 def _network_view(nr: NetworkResult, anchor: str) -> NetworkView:
     reg = _Registry()
     circuit = _circuit(nr.network, reg)
     rows = _rows(nr, reg)
+    operating = _operating(nr, reg)
     res = nr.network.resistor
     value = (
         f"{format_ohms(res.ohms.magnitude('ohm'))} ±{format_percent(res.tolerance.magnitude(''))}"
@@ -337,6 +453,7 @@ def _network_view(nr: NetworkResult, anchor: str) -> NetworkView:
         chart_text(nr),
         value,
         ", ".join(res.refs),
+        operating,
     )
 
 
@@ -414,6 +531,9 @@ def note_context(
         "formulas": _formulas(result),
         "network_counts": _counts(n.verdict for n in result.networks),
         "mains_count": sum(1 for n in result.networks if n.network.mains_adjacent),
+        "hazardous": result.hazardous_nets,
+        "resistor_voltages": result.resistor_voltages,
+        "safety_caution": safety_caution(result),
         "gate": result.gate,
         "accepted_count": sum(1 for m in marks if m is not None and m.holds),
         "changes": _changes_view(result, by_net),
@@ -475,8 +595,15 @@ def note_environment(directory: Path | None = None) -> jinja2.Environment:
         pct=format_percent,
         window=format_window,
         margin=format_margin,
+        rkm=format_rkm,
+        capitalize_first=_capitalize_first,
     )
     return env
+
+
+def _capitalize_first(text: str) -> str:
+    """The sentence with its first letter upper-case (the rest untouched: net names keep case)."""
+    return text[:1].upper() + text[1:]
 
 
 @lru_cache(maxsize=1)

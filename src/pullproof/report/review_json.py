@@ -3,8 +3,11 @@
 from __future__ import annotations
 
 import math
+from functools import lru_cache
 from typing import Any
 
+from ..eseries import format_rkm as _format_rkm
+from ..hazard import safety_caution
 from ..network import Missing
 from ..provenance import Sourced
 from ..results import (
@@ -12,12 +15,19 @@ from ..results import (
     Bound,
     Changes,
     Check,
+    Figure,
     Finding,
     NetworkResult,
+    OperatingPoint,
+    PointValues,
+    Recommendation,
     ReviewResult,
     Skipped,
     Term,
 )
+
+# E-series values recur across networks; the code is the same each time.
+format_rkm = lru_cache(maxsize=4096)(_format_rkm)
 
 __all__ = ["SCHEMA", "review_json"]
 
@@ -31,18 +41,97 @@ def _num(s: Sourced | None, unit: str) -> float | None:
     return x if math.isfinite(x) else None  # an unknown value is null, never NaN
 
 
-def _term(t: Term) -> dict[str, Any]:
-    q = t.value.value
+@lru_cache(maxsize=256)
+def _unit_text(units: Any) -> str:
+    return f"{units:~P}"  # pint's unit formatting is slow, and a review has few units
+
+
+def _quantity(s: Sourced) -> tuple[float, str]:
+    q = s.value
+    value = float(q.magnitude) if hasattr(q, "magnitude") else float(q)
+    return value, _unit_text(q.units) if hasattr(q, "units") else ""
+
+
+def _source(s: Sourced) -> dict[str, str]:
     return {
-        "symbol": t.symbol,
-        "value": float(q.magnitude) if hasattr(q, "magnitude") else float(q),
-        "unit": f"{q.units:~P}" if hasattr(q, "units") else "",
-        "source": {
-            "origin": t.value.source.origin.value,
-            "where": t.value.source.where,
-            "status": t.value.source.status.value,
-            "reason": t.value.source.reason,
-        },
+        "origin": s.source.origin.value,
+        "where": s.source.where,
+        "status": s.source.status.value,
+        "reason": s.source.reason,
+    }
+
+
+def _term(t: Term) -> dict[str, Any]:
+    value, unit = _quantity(t.value)
+    return {"symbol": t.symbol, "value": value, "unit": unit, "source": _source(t.value)}
+
+
+def _figure(f: Figure) -> dict[str, Any]:
+    value, unit = _quantity(f.value) if f.value is not None else (None, "")
+    return {
+        "symbol": f.symbol,
+        "value": value if value is None or math.isfinite(value) else None,
+        "unit": unit,
+        "formula": f.formula,
+        "substituted": f.substituted,
+        "status": f.value.source.status.value if f.value is not None else None,
+        "note": f.note,
+        "terms": [_term(t) for t in f.terms],
+        "missing": [_missing(m) for m in f.missing],
+    }
+
+
+def _operating(op: OperatingPoint | None) -> dict[str, Any] | None:
+    if op is None:
+        return None
+    return {
+        "ohms": op.ohms,
+        "rkm": format_rkm(op.ohms),
+        "band_ohms": list(op.band),
+        "current_max": _figure(op.current_max),
+        "current_min": _figure(op.current_min),
+        "power": _figure(op.power),
+        "idle_level": _figure(op.idle),
+        "edge_time": _figure(op.edge),
+    }
+
+
+def _brief(p: PointValues | None) -> dict[str, Any] | None:
+    """A candidate's operating point as numbers in base units (its value and code are the
+    candidate's; formulas and terms are those of the network's own operating point, with the
+    candidate's band)."""
+    if p is None:
+        return None
+
+    def num(x: float | None) -> float | None:
+        return x if x is None or math.isfinite(x) else None
+
+    return {
+        "band_ohms": list(p.band),
+        "current_max_amps": num(p.current_max),
+        "current_min_amps": num(p.current_min),
+        "power_watts": num(p.power),
+        "idle_volts": num(p.idle),
+        "edge_seconds": num(p.edge),
+    }
+
+
+def _recommendation(rec: Recommendation | None) -> dict[str, Any] | None:
+    if rec is None:
+        return None
+    points = dict(zip(rec.candidates, rec.points, strict=False))
+    return {
+        "series": rec.series,
+        "tolerance": rec.tolerance,
+        "candidates_ohms": list(rec.candidates),
+        "pick_ohms": rec.pick,
+        "policy": rec.policy,
+        "reason": rec.reason,
+        "pick_rkm": None if rec.pick is None else format_rkm(rec.pick),
+        "candidates": [
+            {"ohms": c, "rkm": format_rkm(c), "operating_point": _brief(points.get(c))}
+            for c in rec.candidates
+        ],
     }
 
 
@@ -83,11 +172,11 @@ def _limit(item: Bound | Check, **own: Any) -> dict[str, Any]:
 
 
 def _bound(b: Bound) -> dict[str, Any]:
-    return {**_limit(b, kind=b.kind.value, ohms=b.ohms), "corner": b.corner}
+    return {**_limit(b, kind=b.kind.value, ohms=b.ohms), "corner": b.corner, "says": b.says}
 
 
 def _check(c: Check) -> dict[str, Any]:
-    return _limit(c, ok=c.ok)
+    return {**_limit(c, ok=c.ok), "sentence": c.sentence}
 
 
 def _network(r: NetworkResult) -> dict[str, Any]:
@@ -122,6 +211,8 @@ def _network(r: NetworkResult) -> dict[str, Any]:
             {"ref": c.ref, "farads": _num(c.farads, "F"), "to": c.to} for c in n.capacitors
         ],
         "mains_adjacent": n.mains_adjacent,
+        "hazard_reason": n.mains_reason if n.mains_adjacent else "",
+        "rail_ac": n.rail.ac,
         "window_ohms": list(r.window),
         "margins": list(r.margins),
         "verdict": r.verdict.value,
@@ -129,19 +220,11 @@ def _network(r: NetworkResult) -> dict[str, Any]:
         "binding": list(r.binding),
         "advice": list(r.advice),
         "recommended_ohms": rec.pick if rec else None,
-        "recommendation": None
-        if rec is None
-        else {
-            "series": rec.series,
-            "tolerance": rec.tolerance,
-            "candidates_ohms": list(rec.candidates),
-            "pick_ohms": rec.pick,
-            "policy": rec.policy,
-            "reason": rec.reason,
-        },
+        "recommendation": _recommendation(rec),
         "bounds": [_bound(b) for b in r.bounds],
         "checks": [_check(c) for c in r.checks],
         "missing": [_missing(m) for m in r.missing],
+        "operating_point": _operating(r.operating),
         "acceptance": _acceptance(r.accepted),
     }
 
@@ -159,6 +242,29 @@ def _finding(f: Finding) -> dict[str, Any]:
 
 def _skipped(s: Skipped) -> dict[str, str | None]:
     return {"ref": s.ref, "element": s.element or None, "net": s.net, "reason": s.reason}
+
+
+def _hazardous(result: ReviewResult) -> dict[str, Any]:
+    return {
+        "nets": [
+            {"net": h.net, "volts": h.volts, "ac": h.ac, "reason": h.reason}
+            for h in result.hazardous_nets
+        ],
+        "resistors": [
+            {
+                "ref": c.ref,
+                "net": c.net,
+                "chain": list(c.chain),
+                "volts": c.volts,
+                "ac": c.ac,
+                "working_volts": c.working,
+                "ok": c.ok,
+                "text": c.text,
+            }
+            for c in result.resistor_voltages
+        ],
+        "caution": safety_caution(result),
+    }
 
 
 def _changes(c: Changes | None) -> dict[str, Any] | None:
@@ -199,5 +305,6 @@ def review_json(result: ReviewResult) -> dict[str, Any]:
         "networks": [_network(r) for r in result.networks],
         "findings": [_finding(f) for f in result.findings],
         "skipped": [_skipped(s) for s in result.skipped],
+        "hazardous": _hazardous(result),
         "changes": _changes(result.changes),
     }

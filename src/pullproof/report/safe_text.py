@@ -13,9 +13,10 @@ from __future__ import annotations
 import json
 import re
 import unicodedata
+from collections.abc import Iterator
 from typing import Any
 
-__all__ = ["UNSAFE_CATEGORIES", "for_terminal", "is_unsafe", "json_text"]
+__all__ = ["UNSAFE_CATEGORIES", "for_terminal", "is_unsafe", "json_chunks", "json_text"]
 
 # Unicode general categories never shown raw: controls (C0, DEL, C1), format characters
 # (bidi marks and isolates, zero-width characters, the BOM), lone surrogates, and the line
@@ -63,6 +64,14 @@ def _json_escape(m: re.Match[str]) -> str:
     return f"\\u{0xD800 + (cp >> 10):04x}\\u{0xDC00 + (cp & 0x3FF):04x}"
 
 
+def json_chunks(doc: Any) -> Iterator[str]:
+    """:func:`json_text` piece by piece, for streaming a large document (each JSON string
+    is one piece of ``iterencode``, so no character is split between pieces)."""
+    encoder = json.JSONEncoder(indent=1, ensure_ascii=False)
+    for chunk in encoder.iterencode(doc):
+        yield _NOT_PLAIN.sub(_json_escape, chunk)
+
+
 def json_text(doc: Any) -> str:
     """``doc`` as indented JSON text in which every unsafe character is a ``\\uXXXX`` escape.
 
@@ -70,4 +79,4 @@ def json_text(doc: Any) -> str:
     the layout's newlines; every other unsafe character is inside a string, where an
     escape changes no value: ``json.loads(json_text(d)) == d``.
     """
-    return _NOT_PLAIN.sub(_json_escape, json.dumps(doc, indent=1, ensure_ascii=False))
+    return "".join(json_chunks(doc))

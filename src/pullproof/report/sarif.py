@@ -40,6 +40,7 @@ _FINDING_TEXT = {
     "up-and-down": "A net is pulled both up and down: the pulls form a divider.",
     "pull-without-input": "A pulled net reaches no logic input.",
     "unreadable-value": "A pull resistor's Value cannot be read as a resistance.",
+    "resistor-working-voltage": "A resistor on a hazardous net exceeds its working voltage.",
 }
 
 
