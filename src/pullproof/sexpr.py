@@ -124,7 +124,9 @@ def _scan(src: SourceText, budget: TokenBudget | None = None) -> list[tuple[int,
             raise fail(pos, f"expected '(' but found {excerpt(m.group())}")
         elif kind == "atom":
             tok = m.group()
-            if tok[0] in "'`" or "[" in tok or "]" in tok:
+            # A backslash escapes the next character in sexpdata's bare words, so `\"` would
+            # start no string there but one here: the two would disagree on the lists.
+            if tok[0] in "'`" or "[" in tok or "]" in tok or "\\" in tok:
                 raise fail(pos, f"unexpected character in bare word {excerpt(tok)}; quote it")
             if tok[0] in _NUMBERISH:
                 try:
