@@ -27,7 +27,7 @@ __all__ = [
 
 MB = 1_000_000
 
-# Real schematic sheets are well under 5 MB each; reading takes about 2 s per MB.
+# Real schematic sheets are well under 5 MB each; reading takes a few seconds per MB.
 DEFAULT_MAX_FILE_BYTES = 10 * MB
 DEFAULT_MAX_TOTAL_BYTES = 25 * MB
 # Rules files and part libraries are a few kB.
