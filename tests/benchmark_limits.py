@@ -10,9 +10,9 @@ Goals (README): a file above the size limit is refused in under a second with a 
 memory, whatever its size; a wire across the whole ±10 m range costs what a short one
 costs; a file at the size limit, and the densest file the token limit lets through, are
 read within the time and memory the README states as the bound. Each case runs
-``pullproof.cli.main`` in this process: the best wall time of ``--repeat`` runs, then the
-peak Python heap (``tracemalloc``) of one more run, and the peak resident memory of a
-separate process (``VmHWM``).
+``pullproof.cli.main`` in this process: the best wall time of ``--repeat`` runs, the peak resident
+memory of the same command in a separate process (``VmHWM``), and with ``--heap`` the peak
+Python heap (``tracemalloc``) of one more run.
 """
 
 from __future__ import annotations
@@ -99,17 +99,19 @@ def cases(folder: Path) -> list[tuple[str, Path, list[str]]]:
     ]
 
 
-def measure(argv: list[str], repeat: int) -> tuple[float, float, float]:
-    """(best wall time s, peak traced heap MB, peak RSS MB of a separate process)."""
+def measure(argv: list[str], repeat: int, heap: bool) -> tuple[float, float, float]:
+    """(best wall time s, peak traced heap MB or nan, peak RSS MB of a separate process)."""
     best = float("inf")
     for _ in range(repeat):
         t0 = time.perf_counter()
         _quiet(argv)
         best = min(best, time.perf_counter() - t0)
-    tracemalloc.start()
-    _quiet(argv)
-    _, peak = tracemalloc.get_traced_memory()
-    tracemalloc.stop()
+    peak = float("nan")
+    if heap:  # tracemalloc slows Python down several times: only on request
+        tracemalloc.start()
+        _quiet(argv)
+        peak = tracemalloc.get_traced_memory()[1]
+        tracemalloc.stop()
     # VmHWM (peak resident set) of the new process: ru_maxrss would carry over the parent's
     # peak across fork and exec on Linux.
     code = (
@@ -128,11 +130,13 @@ def measure(argv: list[str], repeat: int) -> tuple[float, float, float]:
 def main(argv: list[str] | None = None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--repeat", type=int, default=3)
+    ap.add_argument("--heap", action="store_true", help="also the peak Python heap (slow)")
     args = ap.parse_args(argv)
     rows = []
     with tempfile.TemporaryDirectory() as tmp:
         for name, path, run_argv in cases(Path(tmp)):
-            rows.append((name, _size(path), *measure(run_argv, args.repeat)))
+            rows.append((name, _size(path), *measure(run_argv, args.repeat, args.heap)))
+            print(name, "done", file=sys.stderr, flush=True)
     print("| case | bytes | time | Python heap | process RSS |")
     print("|---|---|---|---|---|")
     for name, size, t, heap, rss in rows:
