@@ -8,7 +8,6 @@ user gave is byte-identical afterwards.
 from __future__ import annotations
 
 import hashlib
-import shutil
 from collections.abc import Callable
 from pathlib import Path
 
@@ -19,14 +18,6 @@ from pullproof.cli import main
 
 DEMO = FIXTURES / "demo"
 ROOT = "irrigation.kicad_sch"
-
-
-@pytest.fixture
-def project(tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> Path:
-    """A copy of the demo project; the test runs inside it so messages use short names."""
-    shutil.copytree(DEMO, tmp_path / "p")
-    monkeypatch.chdir(tmp_path / "p")
-    return tmp_path / "p"
 
 
 def _digests(folder: Path) -> dict[str, str]:
@@ -110,37 +101,37 @@ CASES: list[tuple[str, Callable[[Path], None], list[str], str]] = [
     ("rules: missing", _nothing, ["review", ROOT, "--rules", "none.toml"],
      "pullproof: cannot read rules file none.toml: No such file or directory"),
     ("parts: bad value", _replace(PARTS, 'i_high = "1uA"', 'i_high = "abc"'), ["review", ROOT],
-     f"pullproof: field 'i_high' of {PARTS} [GENERIC-MCU33]: cannot read 'abc'; expected a "
+     f"{PARTS}:23:1: field 'i_high' of [part.GENERIC-MCU33]: cannot read 'abc'; expected a "
      "current with its unit, such as 1µA, 0.4mA or -0.4 mA"),
     ("parts: unknown key", _replace(PARTS, 'i_high = "1uA"', 'i_hgh = "1uA"'), ["review", ROOT],
-     f"pullproof: {PARTS} [GENERIC-MCU33]: cannot read 'i_hgh'; expected a known key "
+     f"{PARTS}:23:1: [part.GENERIC-MCU33]: cannot read 'i_hgh'; expected a known key "
      "(see the file header)"),
     ("parts: match not a list", _replace(PARTS, MCU_MATCH, "match = 5"), ["review", ROOT],
-     f"pullproof: field 'match' of {PARTS} [part.GENERIC-MCU33]: cannot read '5'; expected a "
+     f"{PARTS}:16:1: field 'match' of [part.GENERIC-MCU33]: cannot read '5'; expected a "
      'list of globs such as ["*MCU*"]'),
     ("parts: one glob as a string", _replace(PARTS, MCU_MATCH, 'match = "*MCU*"'),
      ["review", ROOT],
-     f"pullproof: field 'match' of {PARTS} [part.GENERIC-MCU33]: cannot read '*MCU*'; expected "
+     f"{PARTS}:16:1: field 'match' of [part.GENERIC-MCU33]: cannot read '*MCU*'; expected "
      'a list of globs such as ["*MCU*"]'),
     ("parts: internal pull of three values",
      _replace(PARTS, 'internal_pull = ["30k", "50k"]', 'internal_pull = ["30k", "40k", "50k"]'),
      ["review", ROOT],
-     f"pullproof: field 'internal_pull' of {PARTS} [part.GENERIC-MCU33]: cannot read "
+     f"{PARTS}:27:1: field 'internal_pull' of [part.GENERIC-MCU33]: cannot read "
      "\"['30k', '40k', '50k']\"; expected a range [\"30k\", \"50k\"] or \"none\""),
     ("parts: schmitt flag as text",
      _replace(PARTS, "schmitt_inputs = true", 'schmitt_inputs = "no"'), ["review", ROOT],
-     f"pullproof: field 'schmitt_inputs' of {PARTS} [part.GENERIC-MCU33]: cannot read 'no'; "
+     f"{PARTS}:26:1: field 'schmitt_inputs' of [part.GENERIC-MCU33]: cannot read 'no'; "
      "expected true or false"),
     ("parts: levels not rows",
      _write("p.toml", b'[part.X]\nmatch = ["*"]\nsupply = ["3V", "3.6V"]\nlevels = 5\n'),
      ["review", ROOT, "--parts", "p.toml"],
-     "pullproof: field 'levels' of p.toml [X]: cannot read '5'; expected [[levels]] rows"),
+     "p.toml:4:1: field 'levels' of [part.X]: cannot read '5'; expected [[levels]] rows"),
     ("parts: part is not a table", _write("p.toml", b"part = 5\n"),
      ["review", ROOT, "--parts", "p.toml"],
-     "pullproof: p.toml: cannot read '5'; expected [part.NAME] tables"),
+     "p.toml:1:1: cannot read '5'; expected [part.NAME] tables"),
     ("parts: unknown top-level key", _write("p.toml", b"parts = 5\n"),
      ["review", ROOT, "--parts", "p.toml"],
-     "pullproof: p.toml: cannot read 'parts'; expected only [part.NAME] tables"),
+     "p.toml:1:1: cannot read 'parts'; expected only [part.NAME] tables"),
     ("parts: invalid TOML", _write("p.toml", b"[part.X]\nkind = \n"),
      ["review", ROOT, "--parts", "p.toml"],
      "p.toml:2:8: cannot read 'p.toml'; expected a TOML part library (Invalid value)"),
@@ -150,7 +141,8 @@ CASES: list[tuple[str, Callable[[Path], None], list[str], str]] = [
      "pullproof: cannot read part library none.toml: No such file or directory"),
     ("Tolerance abc", _replace("inputs.kicad_sch", '"Tolerance" "1%"', '"Tolerance" "abc"'),
      ["review", ROOT],
-     "pullproof: field 'Tolerance' of R13: cannot read 'abc'; expected a percentage such as "
+     "inputs.kicad_sch:64:298: field 'Tolerance' of R13: cannot read 'abc'; expected a "
+     "percentage such as "
      "5% or ±1%"),
     ("--ref garbage", _nothing, ["review", ROOT, "--ref", "@@"],
      "pullproof: --ref: '@@' is not a reference or range; expected e.g. R3,R7-R12"),

@@ -79,7 +79,7 @@ def _write(tmp_path: Path, text: str, name: str = "panel.kicad_sch") -> Path:
         (
             "(kicad_pcb (version 20231120))",
             "1:1",
-            "not a schematic: the top-level list is 'kicad_pcb', expected 'kicad_sch'",
+            "not a schematic: it is a board file (kicad_pcb)",
         ),
         ("(kicad_sch " + "(x " * 200 + ")" * 201, "1:309", "lists nested deeper than 100 levels"),
     ],

@@ -6,10 +6,11 @@ from pathlib import Path
 
 import pytest
 
+from pullproof import limits
 from pullproof.cli import _build_parser
 from pullproof.errors import EXIT_FINDINGS, EXIT_INPUT, EXIT_INTERNAL, EXIT_OK
 from pullproof.families.match import FIELDS
-from pullproof.rules import KEYS
+from pullproof.rules import KEYS, RANGES
 
 README = Path(__file__).resolve().parents[1] / "README.md"
 
@@ -45,3 +46,26 @@ def test_exit_codes_are_documented(readme: str) -> None:
     table = readme.split("### Exit codes", 1)[1].split("##", 1)[0]
     for code in (EXIT_OK, EXIT_FINDINGS, EXIT_INPUT, EXIT_INTERNAL):
         assert f"| {code} |" in table
+
+
+@pytest.mark.parametrize("key", sorted(RANGES))
+def test_every_rules_range_is_documented(readme: str, key: str) -> None:
+    assert f"| `{key}` | {RANGES[key].text} |" in readme
+
+
+def test_the_robustness_section_states_the_limits_in_force(readme: str) -> None:
+    section = readme.split("## Robustness", 1)[1].split("\n## ", 1)[0]
+    for text in (
+        f"{limits.DEFAULT_MAX_FILE_BYTES // 1_000_000} MB (`--max-file-size MB`)",
+        f"{limits.DEFAULT_MAX_TOTAL_BYTES // 1_000_000} MB (`--max-total-size MB`)",
+        f"| {limits.MAX_TEXT_FILE_BYTES // 1_000_000} MB each |",
+        f"| {limits.MAX_TOKENS_PER_FILE:,} |",
+        f"| {limits.MAX_TOKENS_TOTAL:,} |",
+        f"| ±{limits.MAX_COORDINATE_MM:,} mm |",
+        f"| {limits.MAX_BUS_MEMBERS} |",
+        f"| {limits.MAX_INSTANCES:,} |",
+        f"| {limits.MAX_SHEET_DEPTH} |",
+        f"| {limits.MAX_EXPANDED_ITEMS:,} |",
+        f"| {limits.MAX_WIRE_DIRECTIONS} |",
+    ):
+        assert text in section

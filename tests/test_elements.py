@@ -159,8 +159,9 @@ def test_a_bad_elements_field_is_an_input_error(tmp_path: Path) -> None:
     root = _hive(tmp_path, elements_field="1-9")
     with pytest.raises(ValueParseError) as info:
         review(root)
-    assert str(info.value) == (
-        "field 'pullproof.elements' of RN4: cannot read '1-9'; expected pin pairs such as "
+    assert str(info.value).startswith(f"{root}:")  # placed at the field: FILE:LINE:COL
+    assert str(info.value).endswith(
+        ": field 'pullproof.elements' of RN4: cannot read '1-9'; expected pin pairs such as "
         "1-8,2-7 or common=1, naming pins of RN4"
     )
     assert main(["review", str(root)]) == 2

@@ -113,7 +113,7 @@ def test_reader_reads_parts_in_each_dialect(version: int) -> None:
     [
         (
             "(kicad_pcb (version 1))",
-            "1:1: not a schematic: the top-level list is 'kicad_pcb', expected 'kicad_sch'",
+            "1:1: not a schematic: it is a board file (kicad_pcb)",
         ),
         (
             '(kicad_sch\n (symbol (lib_id "R") (at 1 2 45)))',

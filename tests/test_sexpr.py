@@ -61,6 +61,9 @@ def test_tabs_and_crlf_are_whitespace() -> None:
         ("kicad_sch", "1:1", "expected '(' but found 'kicad_sch'"),
         ("(a [b])", "1:4", "unexpected character in bare word '[b]'; quote it"),
         ("(a 'b)", "1:4", 'unexpected character in bare word "\'b"; quote it'),
+        # found by the fuzz suite: a bare backslash before a quote (sexpdata reads it as an
+        # escaped quote inside a word, the scanner as the start of a string)
+        ('(a \\"  (b) "x")', "1:4", "unexpected character in bare word '\\\\'; quote it"),
         (
             "(" * (MAX_DEPTH + 1) + ")" * (MAX_DEPTH + 1),
             f"1:{MAX_DEPTH + 1}",

@@ -8,6 +8,7 @@ memory, as the family data records them) and the rules' default preferred range.
 from __future__ import annotations
 
 import json
+import re
 import shutil
 import subprocess
 import sys
@@ -181,7 +182,9 @@ def test_a_bad_accept_field_names_field_and_part(
     root = _panel(tmp_path / "b", "B", r8_fields={"pullproof.accept": "[marginal lots] because"})
     code, _, err = _run(capsys, "review", str(root))
     assert code == 2
-    assert err.startswith("pullproof: field 'pullproof.accept' of R8: cannot read 'lots'")
+    # placed at the field in its sheet: FILE:LINE:COL
+    assert re.match(rf"{re.escape(str(root))}:\d+:\d+: field 'pullproof.accept' of R8: "
+                    "cannot read 'lots'", err)  # fmt: skip
 
 
 # -- two revisions ---------------------------------------------------------------------------

@@ -3,33 +3,33 @@
 The original text is spliced, never re-serialised: for each placed resistor symbol
 only its own ``(property "pullproof.…" …)`` nodes are removed and inserted, in the
 indentation, newline style and field dialect of that file. Every other byte stays
-as it was. Before anything is written, each new text is parsed again and the
-circuit rebuilt from the new texts must have the same net partition; files are
-then replaced atomically (temporary file in the same folder + ``os.replace``),
-and a failure part-way restores the files already replaced.
+as it was, so removing the fields again (``--remove``) gives back the file as it was
+before the first run. Before anything is written, each new text is parsed again and
+the circuit rebuilt from the new texts must have the same net partition; files are
+then replaced by :mod:`pullproof.writeback` (all or nothing, owner and mode kept).
 """
 
 from __future__ import annotations
 
-import contextlib
 import datetime as _dt
 import math
 import os
-import tempfile
-from collections.abc import Iterable, Sequence
+from collections.abc import Sequence
 from dataclasses import dataclass, replace
-from pathlib import Path
 
 from . import __version__
 from .circuit import Circuit
-from .errors import PullproofError, SourceText
+from .errors import AnnotateError, PullproofError, SourceText
 from .eseries import format_rkm
+from .limits import InputPolicy
 from .nets import circuit_from_hierarchy, natural_key
 from .results import Basis, NetworkResult, ReviewResult, Verdict
 from .review import Selection, review
 from .schematic.hierarchy import Hierarchy, load_hierarchy
 from .schematic.reader import read_text
 from .sexpr import Node, parse
+from .textfile import Unreadable, read_regular
+from .writeback import Replacement, remove_stale, replace_all, stale_temporaries
 
 __all__ = [
     "FIELDS",
@@ -60,10 +60,6 @@ _REVIEWED = "pullproof.reviewed"
 # the property itself.
 _V8 = 20231120
 _V9 = 20250114
-
-
-class AnnotateError(PullproofError, RuntimeError):
-    """The fields cannot be written safely; nothing was written."""
 
 
 @dataclass(frozen=True)
@@ -102,11 +98,19 @@ class FileEdit:
 
 @dataclass(frozen=True)
 class AnnotationPlan:
-    """Every file's planned text, checked: parsed again, nets unchanged."""
+    """Every file's planned text, checked: parsed again, nets unchanged.
+
+    ``review`` is None for a plan that only removes fields (``remove=True``); ``stale``
+    lists temporary files an interrupted earlier run left beside the schematic files.
+    """
 
     root: str
-    review: ReviewResult
+    review: ReviewResult | None
     edits: tuple[FileEdit, ...]
+    stale: tuple[str, ...] = ()
+    folder: str = ""  # the root's folder (real path): nothing outside it is written …
+    allow_outside: bool = False  # … unless the sheets were read with --allow-outside
+    remove: bool = False
 
 
 @dataclass(frozen=True)
@@ -212,6 +216,14 @@ def _targets(
         worst = pairs[0][1]
         out[key] = _Target(key[0], key[1], refs, _fields(worst, stamp), _shared_note(pairs))
     # Stale results on resistors no longer judged are removed, so no old verdict lingers.
+    for key, target in _removals(circuit, select).items():
+        out.setdefault(key, target)
+    return out
+
+
+def _removals(circuit: Circuit, select: Selection) -> dict[tuple[str, tuple[int, int]], _Target]:
+    """Every chosen symbol that carries result fields, to be left with none of them."""
+    out: dict[tuple[str, tuple[int, int]], _Target] = {}
     for part in circuit.parts:
         if select.active and not select.wants(part):
             continue
@@ -345,13 +357,16 @@ def _unmarked(text: str) -> str:
     return " " + text[1:] if text.startswith("\ufeff") else text
 
 
-def _edit_file(file: str, path: str, targets: Sequence[_Target], display: str) -> FileEdit:
+def _edit_file(path: str, targets: Sequence[_Target], read: SourceText, max_bytes: int) -> FileEdit:
+    """The planned text of one file; ``read`` is its text as the review read it."""
+    display = read.name
     try:
-        text = Path(path).read_bytes().decode("utf-8")
-    except (OSError, UnicodeDecodeError) as exc:
-        raise AnnotateError(
-            f"{display}: cannot read the file again: {exc}; nothing written"
-        ) from None
+        text = read_regular(path, max_bytes).decode("utf-8")
+    except (Unreadable, UnicodeDecodeError) as exc:
+        raise AnnotateError(f"{display}: cannot read the file again: {exc}; nothing written"
+                            ) from None  # fmt: skip
+    if _unmarked(text) != read.text:
+        raise AnnotateError(f"{display}: the file changed while it was reviewed; nothing written")
     root = parse(_unmarked(text), display)
     by_span = {n.span: n for n in root.nodes("symbol")}
     dialect = _Dialect(text, _version(root))
@@ -370,6 +385,7 @@ def _edit_file(file: str, path: str, targets: Sequence[_Target], display: str) -
     for start, end, repl in sorted(cuts, reverse=True):
         new = new[:start] + repl + new[end:]
     notes = tuple(t.note for t in targets if t.note)
+    file = targets[0].file
     return FileEdit(file, path, text, new, tuple(changes), notes)
 
 
@@ -416,112 +432,79 @@ def plan_annotation(
     parts: Sequence[str | os.PathLike[str]] = (),
     select: Selection | None = None,
     today: _dt.date | None = None,
+    policy: InputPolicy | None = None,
+    remove: bool = False,
     assume: str | None = None,
 ) -> AnnotationPlan:
     """Review ``root`` and work out every file's annotated text; nothing is written.
 
     Args:
         root: the root schematic file.
-        rules, parts, select, assume: as for :func:`pullproof.review.review`.
+        rules, parts, select, policy, assume: as for :func:`pullproof.review.review`.
         today: the date in ``pullproof.reviewed`` (default: today).
+        remove: plan to take every result field out again instead (no review is run,
+            so rules and part libraries are not read).
 
     Raises:
         PullproofError: the review fails (malformed input), or the annotated text
             would not read back with the same nets (:class:`AnnotateError`).
     """
     select = select or Selection()
+    policy = policy or InputPolicy()
     # Read the files once: the hierarchy feeds the review and the read-back check.
-    hier = load_hierarchy(root)
+    hier = load_hierarchy(root, policy)
     circuit = circuit_from_hierarchy(hier, os.fspath(root))
-    result = review(root, rules=rules, parts=parts, select=select, circuit=circuit,
-                    hierarchy=hier, assume=assume)  # fmt: skip
-    stamp = f"pullproof {__version__}, {(today or _dt.date.today()).isoformat()}"
-    targets = _targets(circuit, result, select, stamp)
+    result = None
+    if remove:
+        targets = _removals(circuit, select)
+    else:
+        result = review(root, rules=rules, parts=parts, select=select, circuit=circuit,
+                        hierarchy=hier, assume=assume)  # fmt: skip
+        stamp = f"pullproof {__version__}, {(today or _dt.date.today()).isoformat()}"
+        targets = _targets(circuit, result, select, stamp)
     by_file: dict[str, list[_Target]] = {}
     for t in targets.values():
         by_file.setdefault(t.file, []).append(t)
-    sheet_names = {s.file: s.file for s in circuit.sheets}
-    edits = []
-    for file in sorted(by_file):
-        path = circuit.files[file]
-        display = os.path.join(os.path.dirname(os.fspath(root)), sheet_names.get(file, file))
-        edits.append(_edit_file(file, path, by_file[file], display))
+    edits = [
+        _edit_file(circuit.files[f], by_file[f], hier.texts[f], policy.max_file_bytes)
+        for f in sorted(by_file)
+    ]
     _check(os.fspath(root), hier, circuit, edits)
-    return AnnotationPlan(os.fspath(root), result, tuple(edits))
+    return AnnotationPlan(
+        root=os.fspath(root),
+        review=result,
+        edits=tuple(edits),
+        stale=stale_temporaries(hier.absolute.values()),
+        folder=os.path.dirname(hier.absolute[hier.root_key]),
+        allow_outside=policy.allow_outside,
+        remove=remove,
+    )
 
 
-def apply_annotation(plan: AnnotationPlan) -> tuple[str, ...]:
-    """Write every changed file of ``plan`` atomically; return the files written.
+def apply_annotation(plan: AnnotationPlan, *, backup: bool = False) -> tuple[str, ...]:
+    """Write every changed file of ``plan``, all or none; return the files written.
 
-    All new texts go to temporary files in each file's own folder first; only when
-    all are written are the originals replaced. If a replacement fails, the files
-    already replaced get their original text back.
+    Temporary files that an interrupted earlier run left (``plan.stale``) are removed
+    first. With ``backup`` each file's text before this run is kept as ``FILE.bak``.
 
     Raises:
-        AnnotateError: a file is read-only, changed on disk since it was read, or
-            cannot be written; the originals are left as they were.
+        AnnotateError: a file is read-only, hard-linked, owned by another user, outside
+            the root's folder, changed on disk since it was read, or cannot be written;
+            the originals are left as they were.
     """
+    remove_stale(plan.stale)
     edits = [e for e in plan.edits if e.changed]
     for e in edits:
-        _still_same(e)
-        if not os.access(e.path, os.W_OK):
-            raise AnnotateError(f"{e.path}: the file is read-only; nothing written")
-    temps: list[tuple[FileEdit, str]] = []
-    try:
-        for e in edits:
-            temps.append((e, _write_temp(e.path, e.new_text)))
-    except OSError as exc:
-        _discard(t for _, t in temps)
-        raise AnnotateError(f"{exc.filename or 'a temporary file'}: cannot write: "
-                            f"{exc.strerror or exc}; nothing written") from None  # fmt: skip
-    done: list[FileEdit] = []
-    try:
-        for e, tmp in temps:
-            os.replace(tmp, e.path)
-            done.append(e)
-    except OSError as exc:
-        _discard(t for e, t in temps if e not in done)
-        _restore(done)
-        raise AnnotateError(f"{e.path}: cannot replace the file: {exc.strerror or exc}; "
-                            "nothing written") from None  # fmt: skip
+        if not plan.allow_outside and os.path.commonpath([e.path, plan.folder]) != plan.folder:
+            raise AnnotateError(f"{e.path}: outside the folder of the root schematic; "
+                                "nothing written (see --allow-outside)")  # fmt: skip
+    replace_all(
+        [
+            Replacement(e.path, e.old_text.encode("utf-8"), e.new_text.encode("utf-8"), backup)
+            for e in edits
+        ]
+    )
     return tuple(e.file for e in edits)
-
-
-def _still_same(e: FileEdit) -> None:
-    try:
-        now = Path(e.path).read_bytes().decode("utf-8")
-    except (OSError, UnicodeDecodeError):
-        now = None
-    if now != e.old_text:
-        raise AnnotateError(f"{e.path}: the file changed since it was read; nothing written")
-
-
-def _write_temp(path: str, text: str) -> str:
-    folder, name = os.path.split(path)
-    fd, tmp = tempfile.mkstemp(prefix=f".{name}.", suffix=".tmp", dir=folder)
-    try:
-        with os.fdopen(fd, "wb") as fh:
-            fh.write(text.encode("utf-8"))
-            fh.flush()
-            os.fsync(fh.fileno())
-        os.chmod(tmp, os.stat(path).st_mode & 0o7777)
-    except OSError:
-        _discard([tmp])
-        raise
-    return tmp
-
-
-def _discard(paths: Iterable[str]) -> None:
-    for p in paths:
-        with contextlib.suppress(OSError):  # already gone; nothing of the user's is at stake
-            os.unlink(p)
-
-
-def _restore(done: Sequence[FileEdit]) -> None:
-    """Put the original text back into files already replaced (best effort, atomically)."""
-    for e in done:
-        with contextlib.suppress(OSError):  # the caller's error names the failure
-            os.replace(_write_temp(e.path, e.old_text), e.path)
 
 
 # -- the summary ----------------------------------------------------------------------------
@@ -553,11 +536,19 @@ def format_plan(plan: AnnotationPlan, *, written: bool) -> str:
             elif c.action == "change":
                 what = f"{c.old} -> {c.new}"
             else:
-                what = f"(was {c.old}; no longer judged)"
+                why = "removed on request" if plan.remove else "no longer judged"
+                what = f"(was {c.old}; {why})"
             lines.append(f"  {c.refs:<8} {c.action:<7} {c.name:<22} {what}")
         lines.extend(f"  note: {n}" for n in e.notes)
+    for t in plan.stale:
+        done = "removed" if written else "found (--write removes it)"
+        lines.append(f"{done} a temporary file left by an interrupted run: {t}")
     if not any(counts.values()):
-        lines.append("every field is up to date; nothing to write")
+        lines.append(
+            "no result fields to remove; nothing to write"
+            if plan.remove
+            else "every field is up to date; nothing to write"
+        )
     verb = "wrote" if written else "would write"
     lines.append(
         f"{verb} {counts['add']} new, {counts['change']} changed and {counts['remove']} removed "

@@ -3,58 +3,72 @@
 Each subcommand parses its options, calls the library, prints a report, and
 returns an exit code. Errors the user can cause are :class:`PullproofError`
 subclasses and print as one line; anything else is an internal error (exit 3),
-also printed as one line.
+also printed as one line. Everything printed passes through
+:func:`~pullproof.report.safe_text.for_terminal`: a schematic's control characters
+and bidi marks reach the console only as escapes.
 """
 
 from __future__ import annotations
 
 import argparse
+import contextlib
+import functools
+import signal
 import sys
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Iterator, Sequence
 from typing import TYPE_CHECKING
 
 from . import __version__
 from .errors import EXIT_FINDINGS, EXIT_INPUT, EXIT_INTERNAL, PullproofError
+from .limits import DEFAULT_MAX_FILE_BYTES, DEFAULT_MAX_TOTAL_BYTES, InputPolicy
+from .report.safe_text import for_terminal, json_chunks, json_text
 
 __all__ = ["main"]
 
 if TYPE_CHECKING:
     from .circuit import Circuit
     from .results import ReviewResult
+    from .schematic.hierarchy import Hierarchy
 
 Handler = Callable[[argparse.Namespace], int]
+_MAX_ERROR_CHARS = 400  # an error is one readable line, whatever text it quotes
+
+
+def _out(text: str) -> None:
+    """Print a report (its own newlines kept, every other control character escaped)."""
+    sys.stdout.write(for_terminal(text))
+
+
+def _policy(args: argparse.Namespace) -> InputPolicy:
+    return InputPolicy(
+        max_file_bytes=round(args.max_file_size * 1e6),
+        max_total_bytes=round(args.max_total_size * 1e6),
+        allow_outside=args.allow_outside,
+    )
 
 
 def _cmd_nets(args: argparse.Namespace) -> int:
-    import json
-
     from .nets import build_circuit
     from .report.nets_out import nets_json, nets_table
 
-    circuit = build_circuit(args.root)
-    if args.json:
-        print(json.dumps(nets_json(circuit), indent=1, ensure_ascii=False))
-    else:
-        print(nets_table(circuit), end="")
+    circuit = build_circuit(args.root, _policy(args))
+    _out(json_text(nets_json(circuit)) + "\n" if args.json else nets_table(circuit))
     return 0
 
 
 def _cmd_families(args: argparse.Namespace) -> int:
-    import json
-
     from .families.report import families_json, families_table
 
-    if args.json:
-        print(json.dumps(families_json(), indent=1, ensure_ascii=False))
-    else:
-        print(families_table(), end="")
+    _out(json_text(families_json()) + "\n" if args.json else families_table())
     return 0
 
 
 _FAIL_ON = {"marginal": 1, "incomplete": 2, "fail": 3}
 
 
-def _review_from(args: argparse.Namespace, circuit: Circuit | None = None) -> ReviewResult:
+def _review_from(
+    args: argparse.Namespace, circuit: Circuit | None = None, hierarchy: Hierarchy | None = None
+) -> ReviewResult:
     from dataclasses import replace
 
     from .compare import compare_reviews
@@ -64,43 +78,52 @@ def _review_from(args: argparse.Namespace, circuit: Circuit | None = None) -> Re
         refs=parse_ref_list(args.ref) if args.ref else None,
         where=parse_where(args.where or ()),
     )
-    assume = "none" if getattr(args, "strict", False) else None
+    policy = _policy(args)
+    assume = "none" if getattr(args, "strict", False) else None  # --strict: no stand-in
     result = review(
-        args.root, rules=args.rules, parts=args.parts or (), select=select, circuit=circuit,
+        args.root,
+        rules=args.rules,
+        parts=args.parts or (),
+        select=select,
+        circuit=circuit,
+        hierarchy=hierarchy,
+        policy=policy,
         assume=assume,
-    )  # fmt: skip
+    )
     against = getattr(args, "against", None)
     if against:
         # The older revision is judged by the same explicit --rules/--parts when given, else
         # by the files beside it, as they were in that revision.
         old = review(
-            against, rules=args.rules, parts=args.parts or (), select=select, assume=assume
-        )
+            against, rules=args.rules, parts=args.parts or (), select=select, policy=policy,
+            assume=assume,
+        )  # fmt: skip
         result = replace(result, changes=compare_reviews(result, old))
     return result
 
 
 def _cmd_review(args: argparse.Namespace) -> int:
-    import json
-
-    from .nets import build_circuit
+    from .nets import circuit_from_hierarchy
     from .report.console import review_table
     from .report.review_json import review_json
     from .report.sarif import sarif_log
+    from .schematic.hierarchy import load_hierarchy
     from .textfile import write_report
 
-    circuit = build_circuit(args.root)
-    result = _review_from(args, circuit)
+    hierarchy = load_hierarchy(args.root, _policy(args))  # read once: the SARIF log needs the
+    circuit = circuit_from_hierarchy(hierarchy, args.root)  # circuit, the review both
+    result = _review_from(args, circuit, hierarchy)
     if args.sarif:
-        log = json.dumps(sarif_log(result, circuit), indent=1, ensure_ascii=False)
-        write_report(args.sarif, log + "\n", "SARIF log", result.inputs)
+        write_report(args.sarif, json_text(sarif_log(result, circuit)) + "\n", "SARIF log",
+                     result.inputs)  # fmt: skip
     if args.json:
         # streamed, not built as one string: with every candidate's operating point a large
         # board's document is tens of megabytes
-        json.dump(review_json(result), sys.stdout, indent=1, ensure_ascii=False)
+        for chunk in json_chunks(review_json(result)):
+            sys.stdout.write(chunk)
         sys.stdout.write("\n")
     else:
-        print(review_table(result), end="")
+        _out(review_table(result))
     return EXIT_FINDINGS if _gate_fails(result, args) else 0
 
 
@@ -119,16 +142,13 @@ def _cmd_gate(args: argparse.Namespace) -> int:
 
     roots = roots_of(args.files)
     if not roots:
-        print("pullproof gate: no schematic among the given files; nothing to review")
+        _out("pullproof gate: no schematic among the given files; nothing to review\n")
         return 0
     code = 0
     for root in roots:
-        one = argparse.Namespace(
-            root=str(root), rules=args.rules, parts=args.parts, ref=None, where=None,
-            strict=args.strict,
-        )  # fmt: skip
+        one = argparse.Namespace(**vars(args), root=str(root), ref=None, where=None)
         result = _review_from(one)
-        print(review_table(result), end="\n")
+        _out(review_table(result) + "\n")
         if _gate_fails(result, args):
             code = EXIT_FINDINGS
     return code
@@ -142,7 +162,7 @@ def _cmd_note(args: argparse.Namespace) -> int:
     result = _review_from(args)
     title = args.title or f"Pull resistor design note: {Path(args.root).stem}"
     write_note(result, Path(args.output), title=title, author=args.author or "")
-    print(f"wrote {args.output} ({len(result.networks)} networks, worst: {result.worst.value})")
+    _out(f"wrote {args.output} ({len(result.networks)} networks, worst: {result.worst.value})\n")
     return 0
 
 
@@ -152,13 +172,17 @@ def _cmd_demo(args: argparse.Namespace) -> int:
     from .demo import write_demo
 
     out = write_demo(args.dir, force=args.force)
-    print(f"wrote the demo project to {out.root.parent}:")
-    for path in out.files:
-        print(f"  {path}")
+    lines = [f"wrote the demo project to {out.root.parent}:"]
+    lines += [f"  {path}" for path in out.files]
     tally = Counter(r.verdict for r in out.result.networks)
     counts = ", ".join(f"{v.value} {tally[v]}" for v in sorted(tally, key=lambda v: v.rank))
-    print(f"wrote the design note {out.note} ({len(out.result.networks)} networks: {counts})")
-    print(f"open the note in a browser; review the demo again with: pullproof review {out.root}")
+    lines.append(
+        f"wrote the design note {out.note} ({len(out.result.networks)} networks: {counts})"
+    )
+    lines.append(
+        f"open the note in a browser; review the demo again with: pullproof review {out.root}"
+    )
+    _out("\n".join(lines) + "\n")
     return 0
 
 
@@ -171,32 +195,39 @@ def _cmd_annotate(args: argparse.Namespace) -> int:
         where=parse_where(args.where or ()),
     )
     plan = plan_annotation(
-        args.root, rules=args.rules, parts=args.parts or (), select=select,
+        args.root,
+        rules=args.rules,
+        parts=args.parts or (),
+        select=select,
+        policy=_policy(args),
+        remove=args.remove,
         assume="none" if args.strict else None,
-    )  # fmt: skip
+    )
     if args.write:
-        apply_annotation(plan)
-    print(format_plan(plan, written=args.write), end="")
+        apply_annotation(plan, backup=args.backup)
+    _out(format_plan(plan, written=args.write))
     return 0
 
 
 def _cmd_parts(args: argparse.Namespace) -> int:
     from pathlib import Path
 
-    from .nets import build_circuit
+    from .nets import circuit_from_hierarchy
     from .partdata import needs_of
     from .report.parts_out import parts_listing, write_skeleton
     from .review import load_library
+    from .schematic.hierarchy import load_hierarchy
 
-    circuit = build_circuit(args.root)
-    result = _review_from(args, circuit)
+    hierarchy = load_hierarchy(args.root, _policy(args))
+    circuit = circuit_from_hierarchy(hierarchy, args.root)
+    result = _review_from(args, circuit, hierarchy)
     library = load_library(Path(args.root), [Path(p) for p in args.parts or ()])
     needs = needs_of(result, circuit, library)
     if args.write:  # written first: a file that cannot be written stops before any listing
         write_skeleton(needs, args.write, force=args.force, inputs=result.inputs, root=args.root)
-    print(parts_listing(needs), end="")
+    _out(parts_listing(needs))
     if args.write:
-        print(f"wrote the part-library skeleton {args.write} ({len(needs.entries)} parts)")
+        _out(f"wrote the part-library skeleton {args.write} ({len(needs.entries)} parts)\n")
     return 0
 
 
@@ -226,8 +257,37 @@ def _gate_options(p: argparse.ArgumentParser) -> None:
     )
 
 
+def _megabytes(text: str) -> float:
+    try:
+        value = float(text)
+    except ValueError:
+        value = float("nan")
+    if not 0 < value <= 1e6:  # also refuses nan
+        raise argparse.ArgumentTypeError(f"expected a size in MB above 0, got {text!r}")
+    return value
+
+
+def _limit_options(p: argparse.ArgumentParser) -> None:
+    p.add_argument(
+        "--allow-outside",
+        action="store_true",
+        help="read sheet files given by absolute paths or outside the root's folder",
+    )
+    p.add_argument(
+        "--max-file-size", metavar="MB", type=_megabytes, default=DEFAULT_MAX_FILE_BYTES / 1e6,
+        help=f"refuse a schematic file above this size (default {DEFAULT_MAX_FILE_BYTES / 1e6:g})",
+    )  # fmt: skip
+    p.add_argument(
+        "--max-total-size", metavar="MB", type=_megabytes,
+        default=DEFAULT_MAX_TOTAL_BYTES / 1e6,
+        help=f"refuse schematic files above this size in all "
+        f"(default {DEFAULT_MAX_TOTAL_BYTES / 1e6:g})",
+    )  # fmt: skip
+
+
 def _selection_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("root", help="root schematic file (.kicad_sch)")
+    _limit_options(p)
     p.add_argument(
         "--rules", metavar="FILE", help="rules file (default: pullproof.toml beside ROOT)"
     )
@@ -255,6 +315,7 @@ def _against_option(p: argparse.ArgumentParser) -> None:
     )
 
 
+@functools.cache  # built once: a parser is not changed by parsing
 def _build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="pullproof",
@@ -265,6 +326,7 @@ def _build_parser() -> argparse.ArgumentParser:
 
     p = sub.add_parser("nets", help="list the nets of a schematic (root plus sub-sheets)")
     p.add_argument("root", help="root schematic file (.kicad_sch)")
+    _limit_options(p)
     p.add_argument("--json", action="store_true", help="print the pullproof.nets/1 JSON document")
     p.set_defaults(handler=_cmd_nets)
 
@@ -291,6 +353,7 @@ def _build_parser() -> argparse.ArgumentParser:
     p.add_argument("files", nargs="*", metavar="FILE", help="changed files (.kicad_sch)")
     p.add_argument("--rules", metavar="FILE", help="rules file (default: beside each root)")
     p.add_argument("--parts", metavar="FILE", action="append", help="part-library file")
+    _limit_options(p)
     _gate_options(p)
     _strict_option(p)
     p.set_defaults(handler=_cmd_gate)
@@ -310,6 +373,12 @@ def _build_parser() -> argparse.ArgumentParser:
         action="store_true",
         help="modify the schematic files (default: only list the fields that would change)",
     )
+    p.add_argument(
+        "--remove",
+        action="store_true",
+        help="take the result fields out again (with --write: the files as before annotate)",
+    )
+    p.add_argument("--backup", action="store_true", help="with --write, keep FILE.bak")
     p.set_defaults(handler=_cmd_annotate)
 
     p = sub.add_parser(
@@ -337,26 +406,65 @@ def _build_parser() -> argparse.ArgumentParser:
     return parser
 
 
+class _Interrupted(KeyboardInterrupt):
+    """A termination signal, raised so that clean-up code (``finally``) runs."""
+
+    def __init__(self, signum: int) -> None:
+        super().__init__(signum)
+        self.signum = signum
+
+
+@contextlib.contextmanager
+def _signals_interrupt() -> Iterator[None]:
+    """While running, SIGTERM and SIGHUP interrupt like Ctrl-C: writes are rolled back."""
+
+    def handler(signum: int, frame: object) -> None:
+        raise _Interrupted(signum)
+
+    saved = {}
+    try:
+        for sig in (getattr(signal, "SIGTERM", None), getattr(signal, "SIGHUP", None)):
+            if sig is not None:
+                saved[sig] = signal.signal(sig, handler)
+    except ValueError:  # not the main thread: signals stay as they are
+        pass
+    try:
+        yield
+    finally:
+        for sig, old in saved.items():
+            signal.signal(sig, old)
+
+
+def _error(text: str) -> None:
+    """One line on stderr: newlines joined, control characters escaped, length capped."""
+    line = for_terminal(" ".join(text.splitlines()), keep="")
+    if len(line) > _MAX_ERROR_CHARS:
+        line = line[: _MAX_ERROR_CHARS - 1] + "…"
+    print(line, file=sys.stderr)
+
+
 def main(argv: Sequence[str] | None = None) -> int:
     """Run pullproof with ``argv`` (default: ``sys.argv[1:]``) and return the exit code."""
     parser = _build_parser()
     args = parser.parse_args(argv)
     handler: Handler = args.handler
+    with contextlib.suppress(AttributeError, ValueError):  # never fail on an odd stdout
+        sys.stdout.reconfigure(errors="backslashreplace")  # type: ignore[union-attr]
     try:
-        return handler(args)
+        with _signals_interrupt():
+            return handler(args)
     except PullproofError as exc:
         # Positioned errors already read FILE:LINE:COL: …; others get the program name.
-        text = str(exc) if exc.location is not None else f"pullproof: {exc}"
-        print(text.replace("\n", " "), file=sys.stderr)
+        _error(str(exc) if exc.location is not None else f"pullproof: {exc}")
         return exc.exit_code
     except BrokenPipeError:
         return 0
-    except KeyboardInterrupt:
-        print("pullproof: interrupted", file=sys.stderr)
-        return 130
+    except KeyboardInterrupt as exc:
+        _error("pullproof: interrupted; nothing was left half-written")
+        return 128 + exc.signum if isinstance(exc, _Interrupted) else 130
     except RecursionError:
-        print("pullproof: input nested too deeply to process", file=sys.stderr)
+        _error(f"pullproof: {getattr(args, 'root', '')}: input nested too deeply to process")
         return EXIT_INPUT
     except Exception as exc:
-        print(f"pullproof: internal error: {type(exc).__name__}: {exc}", file=sys.stderr)
+        _error(f"pullproof: internal error: {type(exc).__name__}: {exc}")
         return EXIT_INTERNAL

@@ -15,6 +15,7 @@ __all__ = [
     "EXIT_INPUT",
     "EXIT_INTERNAL",
     "EXIT_OK",
+    "AnnotateError",
     "Location",
     "PullproofError",
     "RulesError",
@@ -22,12 +23,27 @@ __all__ = [
     "SchematicSyntaxError",
     "SourceText",
     "ValueParseError",
+    "excerpt",
 ]
 
 EXIT_OK = 0
 EXIT_FINDINGS = 1  # review found verdicts at or above the --fail-on threshold
 EXIT_INPUT = 2  # bad input: unreadable file, malformed schematic, bad value, bad rules, bad usage
 EXIT_INTERNAL = 3  # a bug in pullproof itself; reported in one line, never a traceback
+
+
+EXCERPT_CHARS = 40  # the most of a file's text an error message quotes
+
+
+def excerpt(text: str, limit: int = EXCERPT_CHARS) -> str:
+    """``text`` quoted for an error message: escaped (``repr``) and cut to ``limit`` characters.
+
+    ``repr`` writes control characters, C1 controls and bidirectional marks as escapes
+    (``\\x1b``, ``\\u202e``), so a quoted excerpt cannot drive a terminal.
+    """
+    if len(text) <= limit:
+        return repr(text)
+    return repr(text[:limit]) + "…"
 
 
 @dataclass(frozen=True)
@@ -93,6 +109,10 @@ class SchematicSyntaxError(SchematicError):
     """The S-expression text itself is malformed."""
 
 
+class AnnotateError(PullproofError, RuntimeError):
+    """Results cannot be written into the schematic safely; nothing was written."""
+
+
 class RulesError(PullproofError, ValueError):
     """The project rules file is malformed or names an unknown key."""
 
@@ -124,4 +144,4 @@ class ValueParseError(PullproofError, ValueError):
             where = f"field {field!r}: "
         elif part is not None:
             where = f"{part}: "
-        super().__init__(f"{where}cannot read {text!r}; expected {expected}", location)
+        super().__init__(f"{where}cannot read {excerpt(text)}; expected {expected}", location)

@@ -40,6 +40,7 @@ from collections.abc import Hashable
 
 from .circuit import Circuit, Net, NetMember, Part, PartPin, Placement, SheetInstance
 from .errors import SchematicError
+from .limits import InputPolicy
 from .schematic import LibSymbol, SymbolPlacement
 from .schematic.busnames import BusName, bus_members, parse_bus_name
 from .schematic.hierarchy import Hierarchy, Instance, load_hierarchy
@@ -53,8 +54,11 @@ _PROPS_NOT_FIELDS = frozenset({"Reference", "Value"})
 
 def natural_key(text: str) -> tuple[tuple[int, int | str], ...]:
     """Sort key that orders R2 before R10 and pin 2 before pin 10."""
+    # Odd items of the split are the digit runs; a run too long for int() sorts as text.
     return tuple(
-        (0, int(chunk)) if chunk.isdigit() else (1, chunk) for chunk in _DIGITS.split(text) if chunk
+        (0, int(chunk)) if i % 2 and len(chunk) <= 100 else (1, chunk)
+        for i, chunk in enumerate(_DIGITS.split(text))
+        if chunk
     )
 
 
@@ -263,6 +267,11 @@ class _Builder:
 
     def make_parts(self) -> list[Part]:
         parts = []
+        by_ref: dict[str, list[tuple[str, NetMember]]] = defaultdict(
+            list
+        )  # one pass, not one per part
+        for (r, number), m in self.members.items():
+            by_ref[r].append((number, m))
         for ref, units in self.parts.items():
             fields: dict[str, str] = {}
             pins: dict[str, PartPin] = {}
@@ -272,9 +281,8 @@ class _Builder:
                     if k not in _PROPS_NOT_FIELDS:
                         fields.setdefault(k, v)
                 placements.append(Placement(inst.file, inst.path, unit, sym.span, sym.uuid))
-            for (r, number), m in self.members.items():
-                if r == ref:
-                    pins[number] = PartPin(number, m.name, m.type)
+            for number, m in by_ref.get(ref, ()):
+                pins[number] = PartPin(number, m.name, m.type)
             first, inst0, _ = units[0]
             parts.append(
                 Part(
@@ -306,15 +314,16 @@ def _unique_names(nets: list[Net]) -> list[Net]:
     return out
 
 
-def build_circuit(root: str | os.PathLike[str]) -> Circuit:
+def build_circuit(root: str | os.PathLike[str], policy: InputPolicy | None = None) -> Circuit:
     """Read ``root`` and its sheets and return the connected circuit.
 
     :param root: the root ``.kicad_sch`` file.
+    :param policy: size limits and whether sheets may lie outside the root's folder.
     :raises SchematicSyntaxError: malformed text in any file (``FILE:LINE:COL``).
     :raises SchematicError: a file is missing, unreadable, not a schematic, or a
         sheet includes itself.
     """
-    return circuit_from_hierarchy(load_hierarchy(root), os.fspath(root))
+    return circuit_from_hierarchy(load_hierarchy(root, policy), os.fspath(root))
 
 
 def circuit_from_hierarchy(hier: Hierarchy, root: str) -> Circuit:

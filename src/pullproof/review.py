@@ -20,7 +20,7 @@ from .acceptance import apply_acceptances, read_acceptances
 from .circuit import Circuit, Part
 from .detect import Resolver, UnknownRail, enabled_internal_pull
 from .elements import library_pins
-from .errors import PullproofError
+from .errors import PullproofError, SourceText, ValueParseError
 from .evaluate import evaluate
 from .families.match import (
     LibraryEntry,
@@ -31,6 +31,7 @@ from .families.match import (
     resolve_part,
 )
 from .hazard import hazards_of, voltage_findings
+from .limits import InputPolicy
 from .nets import circuit_from_hierarchy
 from .network import Direction, Missing, PullNetwork, PullResistor, Rail
 from .provenance import Origin, Provenance, Sourced, Status
@@ -46,6 +47,7 @@ from .results import (
 from .rules import RULES_FILE, Rules, load_rules
 from .schematic.hierarchy import Hierarchy, load_hierarchy
 from .schematic.model import LibPin
+from .textfile import Unreadable, read_regular
 from .topology import PinOnNet, PullSite, find_pulls
 from .units import Q_
 
@@ -79,6 +81,7 @@ class Selection:
         return self.refs is not None or bool(self.where)
 
 
+_MAX_REF_RANGE = 100_000  # more references than any schematic holds
 _RANGE = re.compile(r"^([A-Za-z#_]+)(\d+)-(?:\1)?(\d+)$")
 _REF = re.compile(r"^[A-Za-z#_][\w#.]*$")  # R3, SW_A2, #PWR01: what a reference looks like
 
@@ -102,9 +105,15 @@ def parse_ref_list(text: str) -> frozenset[str]:
                 )
             refs.add(item)
             continue
+        if max(len(m.group(2)), len(m.group(3))) > 9:
+            raise SelectionError(f"--ref: range {item!r} is too large; expected e.g. R7-R12")
         prefix, a, b = m.group(1), int(m.group(2)), int(m.group(3))
         if b < a:
             raise SelectionError(f"--ref: range {item!r} runs backwards; expected e.g. R7-R12")
+        if b - a >= _MAX_REF_RANGE:
+            raise SelectionError(
+                f"--ref: range {item!r} names more than {_MAX_REF_RANGE:,} references"
+            )
         refs.update(f"{prefix}{n}" for n in range(a, b + 1))
     return frozenset(refs)
 
@@ -286,6 +295,7 @@ def review(
     select: Selection | None = None,
     circuit: Circuit | None = None,
     hierarchy: Hierarchy | None = None,
+    policy: InputPolicy | None = None,
     assume: str | None = None,
 ) -> ReviewResult:
     """Review every pull resistor of the schematic rooted at ``root``.
@@ -297,6 +307,7 @@ def review(
         select: restrict the judged resistors (``--ref``, ``--where``).
         circuit: ``root`` already read and connected (saves reading it again).
         hierarchy: ``root`` already read (the files behind ``circuit``).
+        policy: size limits and whether sheets may lie outside the root's folder.
         assume: overrides the rules' ``assume`` ("none" for ``--strict``: no assumption).
 
     Raises:
@@ -304,19 +315,47 @@ def review(
     """
     root_path = Path(root)
     # The symbols' own pins (which units, which geometry) tell a resistor array's elements.
-    hier = hierarchy if hierarchy is not None else load_hierarchy(root_path)
+    hier = hierarchy if hierarchy is not None else load_hierarchy(root_path, policy)
     circuit = circuit if circuit is not None else circuit_from_hierarchy(hier, os.fspath(root))
     rules_obj = load_rules(root_path, Path(rules) if rules is not None else None)
     if assume is not None:
         rules_obj = rules_obj.with_assume(assume)
     library = _library(root_path, [Path(p) for p in parts])
-    result = review_circuit(
-        circuit, rules_obj, library, select or Selection(), library_pins(hier, circuit)
-    )
+    try:
+        result = review_circuit(
+            circuit, rules_obj, library, select or Selection(), library_pins(hier, circuit)
+        )
+    except ValueParseError as exc:
+        raise _placed(exc, circuit) from None
     if rules_obj.file:  # Rules keeps only the file name; the note reads and digests the file
         used = Path(rules) if rules is not None else root_path.parent / RULES_FILE
         result = replace(result, rules_file=os.path.abspath(used))
     return result
+
+
+_FIELD_READ_LIMIT = 1 << 30  # the file was read within its limit already; this only finds a line
+
+
+def _placed(exc: ValueParseError, circuit: Circuit) -> ValueParseError:
+    """A part-field error placed at the field in its schematic file (``FILE:LINE:COL``)."""
+    part = circuit.part(exc.part) if exc.part else None
+    if exc.location is not None or part is None or exc.field is None or not part.placements:
+        return exc
+    prop = re.compile(r'\(property\s+"' + re.escape(exc.field) + '"', re.IGNORECASE)
+    for pl in part.placements:
+        display = os.path.join(os.path.dirname(circuit.root), pl.file)
+        try:
+            text = read_regular(circuit.files[pl.file], _FIELD_READ_LIMIT).decode(
+                "utf-8", "replace"
+            )
+        except (Unreadable, KeyError):
+            continue
+        m = prop.search(text, pl.span[0], pl.span[1])
+        if m is not None or pl is part.placements[-1]:
+            where = SourceText(display, text).locate(m.start() if m else pl.span[0])
+            return ValueParseError(exc.text, expected=exc.expected, field=exc.field,
+                                   part=exc.part, location=where)  # fmt: skip
+    return exc
 
 
 def review_circuit(

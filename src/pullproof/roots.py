@@ -42,9 +42,10 @@ def roots_of(changed: Iterable[str | os.PathLike[str]]) -> list[Path]:
         path = Path(item)
         if path.suffix != ".kicad_sch":
             continue
-        target = str(path.resolve())
+        real = Path(os.path.realpath(path))  # Path.resolve raises on a symbolic-link loop
+        target = str(real)
         owners = []
-        for folder in _folders_up(path.resolve().parent):
+        for folder in _folders_up(real.parent):
             for project in sorted(folder.glob("*.kicad_pro")):
                 root = project.with_suffix(".kicad_sch")
                 if not root.is_file():
@@ -53,7 +54,7 @@ def roots_of(changed: Iterable[str | os.PathLike[str]]) -> list[Path]:
                     try:
                         files_of[root] = set(load_hierarchy(root).absolute.values())
                     except PullproofError:
-                        files_of[root] = {str(root.resolve())}  # reported when it is reviewed
+                        files_of[root] = {os.path.realpath(root)}  # reported when reviewed
                 if target in files_of[root]:
                     owners.append(root)
         for root in owners or [path]:

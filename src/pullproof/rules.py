@@ -117,6 +117,62 @@ KEYS: Mapping[str, Key] = MappingProxyType(
         ),
     }
 )
+
+
+@dataclass(frozen=True)
+class Range:
+    """Where a rules value must lie, in ``unit``; ``text`` says it in words for the error."""
+
+    unit: str
+    low: float | None
+    high: float | None = None
+    low_open: bool = False  # the low end itself is not allowed (a divisor, say)
+    high_open: bool = False
+    text: str = ""
+
+    def holds(self, x: float) -> bool:
+        if self.low is not None and (x < self.low or (self.low_open and x == self.low)):
+            return False
+        return self.high is None or (x < self.high or (not self.high_open and x == self.high))
+
+
+_FRACTION = Range("", 0.0, 1.0, high_open=True, text="a value from 0% to below 100%")
+_POSITIVE = "a value above zero (it is a divisor)"
+_KELVIN = "a temperature from -273.15 °C (absolute zero) to 1000 °C"
+# What each numeric key may be; a value outside would divide by zero, flip a sign or
+# describe no real part. The README lists the same ranges beside the keys.
+RANGES: Mapping[str, Range] = MappingProxyType(
+    {
+        "rail_tolerance": _FRACTION,
+        "resistor.tolerance": _FRACTION,
+        "derating": Range("", 0.0, 1.0, low_open=True, text="a value above 0% and at most 100%"),
+        "margin": Range("V", 0.0, text="a value that is not negative"),  # or _MARGIN_FRACTION
+        "current_budget": Range("A", 0.0, low_open=True, text=_POSITIVE),
+        "bounce": Range("s", 0.0, low_open=True, text=_POSITIVE),
+        "edge_time": Range("s", 0.0, low_open=True, text=_POSITIVE),
+        "mains_voltage": Range("V", 0.0, low_open=True, text="a value above zero"),
+        "resistor.power": Range("W", 0.0, low_open=True, text=_POSITIVE),
+        "resistor.tcr": Range("1/K", 0.0, 0.01, text="a value from 0 to 10000 ppm/K"),
+        "temperature.min": Range("degC", -273.15, 1000.0, text=_KELVIN),
+        "temperature.max": Range("degC", -273.15, 1000.0, text=_KELVIN),
+        "temperature.ref": Range("degC", -273.15, 1000.0, text=_KELVIN),
+        "preferred.min": Range("ohm", 0.0, text="a value that is not negative"),
+        "preferred.max": Range("ohm", 0.0, low_open=True, text="a value above zero"),
+        "i2c.bus_capacitance": Range("F", 0.0, low_open=True, text=_POSITIVE),
+    }
+)
+_MARGIN_FRACTION = _FRACTION
+_NET_RANGES = MappingProxyType(
+    {
+        "margin": RANGES["margin"],
+        "bus_capacitance": RANGES["i2c.bus_capacitance"],
+        "bounce": RANGES["bounce"],
+        "edge_time": RANGES["edge_time"],
+        "current_budget": RANGES["current_budget"],
+    }
+)
+# Pairs whose first value may not exceed the second.
+_ORDERED = (("temperature.min", "temperature.max"), ("preferred.min", "preferred.max"))
 _NET_KEYS = frozenset(
     {
         "match", "margin", "i2c", "bus_capacitance", "capacitance", "bounce", "edge_time",
@@ -401,11 +457,15 @@ class _Reader:
         hint = f"; did you mean {close[0]!r}?" if close else ""
         return self.error(dotted, f"unknown rules key {dotted!r}{hint}")
 
-    def value(self, dotted: str, kind: str, raw: Any) -> Sourced | str:
+    def value(self, dotted: str, kind: str, raw: Any, limits: Range | None = None) -> Sourced | str:
         if isinstance(raw, bool) or not isinstance(raw, str | int | float | list):
             raise self.error(dotted, f'rules key {dotted!r}: write the value as text, e.g. "5%"')
         if isinstance(raw, list):
-            raw = ",".join(str(x) for x in raw)
+            if kind != "patterns" or not all(isinstance(x, str) for x in raw):
+                example = KEYS[dotted].default if dotted in KEYS else None
+                raise self.error(dotted, f"rules key {dotted!r}: write one value as text, e.g. "
+                                 f'"{example or "5%"}", not a list')  # fmt: skip
+            raw = ",".join(raw)
         text = str(raw)
         try:
             parsed = _READERS[kind](text, dotted)
@@ -414,6 +474,11 @@ class _Reader:
             raise self.error(dotted, message) from None
         if kind in _WORDS:
             return str(parsed)
+        if kind == "margin" and limits is not None and str(parsed.units) == "dimensionless":
+            limits = _MARGIN_FRACTION
+        if limits is not None and not limits.holds(float(parsed.to(limits.unit).magnitude)):
+            raise self.error(dotted, f"rules key {dotted!r}: {text!r} is impossible; "
+                             f"expected {limits.text}")  # fmt: skip
         where = f"rules key {dotted} ({self.path.name}:{_line_of(self.text, dotted)})"
         return Sourced(parsed, Provenance(Origin.RULES, where, Status.USER))
 
@@ -470,7 +535,7 @@ def _build(reader: _Reader | None, doc: Mapping[str, Any]) -> Rules:
             values[dotted] = None
         elif dotted in flat:
             assert reader is not None
-            values[dotted] = reader.value(dotted, key.kind, flat[dotted])
+            values[dotted] = reader.value(dotted, key.kind, flat[dotted], RANGES.get(dotted))
         elif key.default is None:
             values[dotted] = None
         else:
@@ -484,6 +549,8 @@ def _build(reader: _Reader | None, doc: Mapping[str, Any]) -> Rules:
                 src = Provenance(origin, f"default {dotted}", Status.DEFAULT, key.reason, stands)
                 parsed = Sourced(parsed.value, src)
             values[dotted] = parsed
+    if reader is not None:
+        _check_together(reader, flat, values)
     rails = _rails(reader, flat.get("rails", {}), values)
     nets = _nets(reader, flat.get("net", []))
     for _, entry in nets:
@@ -564,6 +631,31 @@ def _raw_entries(reader: _Reader | None, entries: Any, name: str) -> tuple[RawEn
     )
 
 
+def _check_together(reader: _Reader, flat: Mapping[str, Any], values: Mapping[str, Any]) -> None:
+    """Keys that are each possible but impossible together: a span upside down, and a TCR
+    that over the temperature span would take the resistance to zero."""
+    for low, high in _ORDERED:
+        if values[low].value > values[high].value:
+            a, b = (str(flat.get(k, KEYS[k].default)) for k in (low, high))
+            key = high if high in flat else low
+            raise reader.error(key, f"rules key {low!r} = {a!r} is above {high!r} = {b!r}; "
+                               f"expected {low} ≤ {high}")  # fmt: skip
+    span = max_temperature_span(values)
+    tcr = values["resistor.tcr"].magnitude("1/K")
+    if tcr * span >= 1:
+        key = "resistor.tcr" if "resistor.tcr" in flat else "temperature.max"
+        raise reader.error(key, f"rules key 'resistor.tcr' ({tcr * 1e6:g} ppm/K) over the "
+                           f"temperature span ({span:g} K from the reference) would take a "
+                           "resistor to zero; expected a smaller TCR or span")  # fmt: skip
+
+
+def max_temperature_span(values: Mapping[str, Any]) -> float:
+    """ΔT in kelvin: the largest distance from the reference temperature to either end."""
+    ref, lo, hi = (values[k].magnitude("degC") for k in ("temperature.ref", "temperature.min",
+                                                         "temperature.max"))  # fmt: skip
+    return float(max(abs(ref - lo), abs(hi - ref)))
+
+
 def _rails(reader: _Reader | None, table: Any, values: Mapping[str, Any]) -> Mapping[str, RailSpec]:
     out: dict[str, RailSpec] = {}
     if not table:
@@ -589,7 +681,7 @@ def _rails(reader: _Reader | None, table: Any, values: Mapping[str, Any]) -> Map
         nominal = reader.value(dotted, "voltage", entry.get("nominal", ""))
         ac = _rail_is_ac(reader, dotted, entry)
         tol = (
-            reader.value(f"{dotted}.tolerance", "percent", entry["tolerance"])
+            reader.value(f"{dotted}.tolerance", "percent", entry["tolerance"], _FRACTION)
             if "tolerance" in entry
             else values["rail_tolerance"]
         )
@@ -669,7 +761,9 @@ def _nets(reader: _Reader | None, entries: Any) -> tuple[tuple[str, Mapping[str,
             where = "net.match" if "match" in entry else "net"
             raise reader.error(where, 'a [[net]] entry needs match = "NET-PATTERN"')
         parsed = {
-            k: reader.value(f"net.{k}", _NET_KINDS[k], v) for k, v in entry.items() if k != "match"
+            k: reader.value(f"net.{k}", _NET_KINDS[k], v, _NET_RANGES.get(k))
+            for k, v in entry.items()
+            if k != "match"
         }
         out.append((pattern, MappingProxyType(parsed)))
     return tuple(out)

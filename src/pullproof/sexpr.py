@@ -18,7 +18,8 @@ from typing import Any
 
 import sexpdata
 
-from .errors import SchematicSyntaxError, SourceText
+from .errors import SchematicSyntaxError, SourceText, excerpt
+from .limits import MAX_TOKENS_PER_FILE, MAX_TOKENS_TOTAL, TokenBudget
 
 __all__ = ["MAX_DEPTH", "Atom", "Node", "Sym", "parse"]
 
@@ -82,7 +83,7 @@ _TOKEN = re.compile(
 _NUMBERISH = frozenset("0123456789+-.nNiI")
 
 
-def _scan(src: SourceText) -> list[tuple[int, int]]:
+def _scan(src: SourceText, budget: TokenBudget | None = None) -> list[tuple[int, int]]:
     """Validate ``src`` and return the spans of all lists in pre-order."""
     text = src.text
 
@@ -92,9 +93,17 @@ def _scan(src: SourceText) -> list[tuple[int, int]]:
     spans: list[tuple[int, int]] = []
     stack: list[int] = []  # indexes into spans of the open lists
     closed_top = -1
-    for m in _TOKEN.finditer(text):
+    limit = MAX_TOKENS_PER_FILE if budget is None else budget.for_file()
+    count = 0
+    for count, m in enumerate(_TOKEN.finditer(text), 1):
         kind = m.lastgroup
         pos = m.start()
+        if count > limit:
+            if limit < MAX_TOKENS_PER_FILE:
+                total = budget.total if budget is not None else MAX_TOKENS_TOTAL
+                raise fail(pos, f"the files read so far and this one hold more than "
+                                f"{total:,} lists and words")  # fmt: skip
+            raise fail(pos, f"more than {MAX_TOKENS_PER_FILE:,} lists and words in one file")
         if closed_top >= 0:
             raise fail(pos, "unexpected text after the end of the top-level list")
         if kind == "open":
@@ -112,18 +121,22 @@ def _scan(src: SourceText) -> list[tuple[int, int]]:
         elif kind == "unterminated":
             raise fail(pos, "unterminated string: missing closing '\"'")
         elif not stack:
-            raise fail(pos, f"expected '(' but found {m.group()!r}")
+            raise fail(pos, f"expected '(' but found {excerpt(m.group())}")
         elif kind == "atom":
             tok = m.group()
-            if tok[0] in "'`" or "[" in tok or "]" in tok:
-                raise fail(pos, f"unexpected character in bare word {tok!r}; quote it")
+            # A backslash escapes the next character in sexpdata's bare words, so `\"` would
+            # start no string there but one here: the two would disagree on the lists.
+            if tok[0] in "'`" or "[" in tok or "]" in tok or "\\" in tok:
+                raise fail(pos, f"unexpected character in bare word {excerpt(tok)}; quote it")
             if tok[0] in _NUMBERISH:
                 try:
                     value = float(tok)
                 except ValueError:
                     continue
                 if not math.isfinite(value):
-                    raise fail(pos, f"number {tok!r} is not finite")
+                    raise fail(pos, f"number {excerpt(tok)} is not finite")
+    if budget is not None:
+        budget.spend(count)
     if stack:
         raise fail(spans[stack[-1]][0], "unclosed '(': missing ')' before the end of the file")
     if not spans:
@@ -142,24 +155,29 @@ def _build(value: list[Any], spans: Iterator[tuple[int, int]], src: SourceText) 
         elif isinstance(v, str | int | float):
             items.append(v)
         else:  # the scanner rejects every other construct; keep it loud if that changes
-            raise SchematicSyntaxError(f"unsupported element {v!r}", src.locate(span[0]))
+            raise SchematicSyntaxError(
+                f"unsupported element {excerpt(repr(v))}", src.locate(span[0])
+            )
     head = items[0] if items and isinstance(items[0], str) else ""
     return Node(str(head), tuple(items[1:] if head else items), span)
 
 
-def parse(text: str, name: str) -> Node:
+def parse(text: str, name: str, budget: TokenBudget | None = None) -> Node:
     """Parse one S-expression document.
 
     :param text: the whole file text.
     :param name: the file name used in error locations.
+    :param budget: the lists and words still allowed (default: the per-file limit only).
     :raises SchematicSyntaxError: malformed text, as ``NAME:LINE:COL: what is wrong``.
     """
     src = SourceText(name, text)
-    spans = _scan(src)
+    spans = _scan(src, budget)
     try:
         value = sexpdata.loads(text, nil=None, true=None, false=None, line_comment="\x00")
     except Exception as exc:  # sexpdata raises builtins of many kinds
-        raise SchematicSyntaxError(f"cannot parse: {exc}", src.locate(0)) from None
+        raise SchematicSyntaxError(
+            f"cannot parse: {excerpt(str(exc), 60)}", src.locate(0)
+        ) from None
     if not isinstance(value, list):
         raise SchematicSyntaxError("expected a '(' list", src.locate(0))
     it = iter(spans)

@@ -197,11 +197,17 @@ def _decimal(text: str, exp: int) -> Decimal:
     return value
 
 
+# The magnitudes a value may have in its base unit (V, A, Ω, F, s, W, 1/K, fraction):
+# 1e-18 to 1e15 hold every real part and keep every product, square and quotient the
+# constraints form far inside the range of a float (a rail of 1e308 V would overflow).
+_SMALLEST = Decimal("1e-18")
+_LARGEST = Decimal("1e15")
+
+
 def _finite(value: Decimal, text: str, expected: str, field: str | None, part: str | None) -> float:
-    result = float(value)
-    if not math.isfinite(result) or (result == 0.0 and value != 0):
+    if value != 0 and not _SMALLEST <= abs(value) <= _LARGEST:
         raise _fail(text, f"{expected} (the number is out of range)", field, part)
-    return result
+    return float(value)
 
 
 def _resistance_head(
@@ -291,12 +297,13 @@ def _extra_value(
             raise _fail(text, f"{_EXPECT_PCT} below 100 %", field, part)
         return "tolerance", Q_(frac, "")
     if m.group("pfrac"):
-        den = int(m.group("pd"))
+        den = Decimal(m.group("pd"))  # Decimal: any number of digits (int() stops at 4300)
         if den == 0:
             raise _fail(text, _EXPECT_P, field, part)
-        if int(m.group("pn")) == 0:
+        if Decimal(m.group("pn")) == 0:
             raise _fail(text, f"{_EXPECT_P} above zero", field, part)
-        return "power", Q_(int(m.group("pn")) / den, "W")
+        watts = _finite(Decimal(m.group("pn")) / den, text, _EXPECT_P, field, part)
+        return "power", Q_(watts, "W")
     if m.group("pow"):
         exp = {"": 0, "m": -3, "k": 3}[m.group("pprefix") or ""]
         watts = _finite(_decimal(m.group("pnum"), exp), text, _EXPECT_P, field, part)
@@ -559,9 +566,10 @@ def parse_power(text: str, *, field: str | None = None, part: str | None = None)
     if m is None:
         raise _fail(text, _EXPECT_P, field, part)
     if m.group("n") is not None:
-        if int(m.group("d")) == 0:
+        den = Decimal(m.group("d"))  # Decimal: any number of digits (int() stops at 4300)
+        if den == 0:
             raise _fail(text, _EXPECT_P, field, part)
-        return Q_(int(m.group("n")) / int(m.group("d")), "W")
+        return Q_(_finite(Decimal(m.group("n")) / den, text, _EXPECT_P, field, part), "W")
     exp = {"": 0, "m": -3, "k": 3}[m.group("prefix") or ""]
     return Q_(_finite(_decimal(m.group("num"), exp), text, _EXPECT_P, field, part), "W")
 

@@ -85,7 +85,13 @@ class VoltageExpr:
         if m is None:  # pragma: no cover - the last branch matches anything non-blank
             raise ValueParseError(text, expected="a voltage, 'k VDD' or 'VDD±x V'", field=field)
         if m.group("k") is not None:
-            return cls(float(m.group("k")), 0.0, text)
+            k = float(m.group("k"))
+            if not 0 <= k <= 1:  # a level is a fraction of the supply it is powered from
+                raise ValueParseError(
+                    text, expected="a fraction of the supply from 0 to 1, such as 0.7 VDD",
+                    field=field, part=part,
+                )  # fmt: skip
+            return cls(k, 0.0, text)
         if m.group("abs") is None:
             offset = 0.0
             if m.group("off") is not None:
@@ -340,10 +346,10 @@ QUANTITY: Mapping[str, str] = MappingProxyType(
 # ---------------------------------------------------------------- reading TOML tables
 
 
-def _status(word: Any, where: str) -> Status:
+def _status(word: Any, field: str, part: str) -> Status:
     if not isinstance(word, str) or word not in STATUS_WORDS:
         words = ", ".join((*STATUS_WORDS, ASSUMED_WORD))
-        raise ValueParseError(str(word), expected=f"a status: {words}", field=where)
+        raise ValueParseError(str(word), expected=f"a status: {words}", field=field, part=part)
     return STATUS_WORDS[word]
 
 
@@ -383,7 +389,26 @@ def _row(table: Any, keys: tuple[str, ...], field: str, part: str) -> LevelRow:
             values[key] = float(parse_time(body, field=name, part=part).to("s").magnitude)
         else:
             raise ValueParseError(key, expected=f"one of vdd, {', '.join(keys)}", field=name)
+    _check_order(values, lo, hi, field, part)
     return LevelRow(lo, hi, MappingProxyType(values), frozenset(per_volt))
+
+
+# Pairs of one row that cannot be the other way round at any supply of the row.
+_ORDER = (("vil_max", "vih_min"), ("vt_minus_min", "vt_minus_max"), ("vt_plus_min", "vt_plus_max"))
+
+
+def _check_order(
+    values: Mapping[str, VoltageExpr | float], lo: float, hi: float, field: str, part: str
+) -> None:
+    for low, high in _ORDER:
+        a, b = values.get(low), values.get(high)
+        if not (isinstance(a, VoltageExpr) and isinstance(b, VoltageExpr)):
+            continue
+        if any(a.at(v) > b.at(v) for v in (lo, hi)):
+            raise ValueParseError(
+                b.text, expected=f"{high} at or above {low} ({a.text}) across the row's vdd",
+                field=f"{field}.{high}", part=part,
+            )  # fmt: skip
 
 
 def _rows(table: Mapping[str, Any], key: str, part: str) -> list[Any]:
@@ -420,7 +445,7 @@ def family_from_table(
             raise ValueParseError(key, expected="a known key (see the file header)", part=part)
     word = table.get("status", "user")
     assumed: set[str] = set(_STATUS_KEYS) if word == ASSUMED_WORD else set()
-    default = Status.DEFAULT if assumed else _status(word, f"{name}.status")
+    default = Status.DEFAULT if assumed else _status(word, "status", part)
     statuses = dict.fromkeys(_STATUS_KEYS, default)
     status_of = table.get("status_of", {})
     if not isinstance(status_of, dict):
@@ -435,7 +460,7 @@ def family_from_table(
             assumed.add(key)
             continue
         assumed.discard(key)
-        statuses[key] = _status(word, f"{name}.status_of.{key}")
+        statuses[key] = _status(word, f"status_of.{key}", part)
     if "supply" not in table:
         raise ValueParseError("", expected='supply = ["min V", "max V"]', field="supply", part=part)
     lo, hi = _span(table["supply"], "supply", part)

@@ -23,10 +23,10 @@ from types import MappingProxyType
 from typing import Any
 
 from ..circuit import Part
-from ..errors import Location, PullproofError, ValueParseError
+from ..errors import Location, PullproofError, ValueParseError, excerpt
 from ..network import Missing
 from ..provenance import Origin, Provenance, Sourced, Stands, Status
-from ..rules import Rules
+from ..rules import Rules, max_temperature_span
 from ..textfile import read_utf8
 from ..units import (
     Q_,
@@ -303,6 +303,36 @@ def _assumed_entry(src: Provenance, key: str, text: str, name: str, file: str) -
     )  # fmt: skip
 
 
+_HEADER = re.compile(r"""^\s*\[\[?\s*(?P<path>[^\]]*?)\s*\]""")
+_PATH_PART = re.compile(r"""\s*(?:"((?:[^"\\]|\\.)*)"|'([^']*)'|([\w-]+))\s*(?:\.|$)""")
+
+
+def _header_path(inside: str) -> tuple[str, ...]:
+    return tuple(a or b or c for a, b, c in _PATH_PART.findall(inside))
+
+
+def _key_line(text: str, entry: str | None, key: str) -> int:
+    """The line of ``key`` in the ``[part.ENTRY]`` table (or its sub-tables); with ``entry``
+    None, a top-level key. tomllib keeps no positions, so the text is scanned: the header
+    line when the key is not found, else 1."""
+    key_re = re.compile(rf"""^\s*(?:["']?{re.escape(key)}["']?|{re.escape(key)}\s*\.)\s*[=.]""")
+    fallback = 1
+    inside = entry is None
+    for i, line in enumerate(text.splitlines(), 1):
+        head = _HEADER.match(line)
+        if head is not None:
+            path = _header_path(head.group("path"))
+            inside = entry is not None and path[:2] == ("part", entry)
+            if inside and fallback == 1:
+                fallback = i
+            if entry is None and path and path[0] == key:
+                return i
+            continue
+        if inside and key_re.match(line):
+            return i
+    return fallback
+
+
 def load_part_library(path: Path) -> PartLibrary:
     """Read a part library (TOML, ``[part.NAME]`` tables; syntax in the example file header).
 
@@ -319,76 +349,92 @@ def load_part_library(path: Path) -> PartLibrary:
         raise ValueParseError(
             str(path), expected=f"a TOML part library ({message})", location=loc
         ) from None
-    entries = []
     for key in doc:
         if key != "part":
-            raise ValueParseError(key, expected="only [part.NAME] tables", part=str(path))
+            loc = Location(str(path), _key_line(text, None, key), 1)
+            raise ValueParseError(key, expected="only [part.NAME] tables", location=loc)
     parts = doc.get("part", {})
     if not isinstance(parts, dict):
-        raise ValueParseError(str(parts), expected="[part.NAME] tables", part=str(path))
+        loc = Location(str(path), _key_line(text, None, "part"), 1)
+        raise ValueParseError(str(parts), expected="[part.NAME] tables", location=loc)
+    entries = []
     for name, table in parts.items():
-        part = f"{Path(path).name} [part.{name}]"
-        if not isinstance(table, dict):
-            raise ValueParseError(str(table), expected="a table of keys", part=part)
-        kind_word = str(table.get("kind", "microcontroller"))
-        kinds = {k.value: k for k in PartKind}
-        if kind_word not in kinds:
+        try:
+            entries.append(_entry(name, table, Path(path)))
+        except ValueParseError as exc:
+            if exc.location is not None:
+                raise
+            key = (exc.field or exc.text).split(".")[-1]
             raise ValueParseError(
-                kind_word, expected=f"one of {', '.join(kinds)}", field="kind", part=part
-            )
-        family = None
-        if "supply" in table:
-            family = family_from_table(
-                name, table, str(path), origin=Origin.PART_LIBRARY, extra_keys=_ENTRY_KEYS
-            )
-        where = f"part library entry {name} ({Path(path).name})"
-        src = Provenance(Origin.PART_LIBRARY, where, Status.USER, str(table.get("note", "")))
-        ratings = {
-            key: Sourced(
-                reader(str(table[key]), field=key, part=part),
-                _assumed_entry(src, key, str(table[key]), name, Path(path).name)
-                if table.get("status") == ASSUMED_WORD
-                else src,
-            )
-            for key, reader in _RATING_READERS.items()
-            if key in table
-        }
-        pull = None
-        no_pull = str(table.get("internal_pull", "")).strip().lower() == "none"
-        if "internal_pull" in table and not no_pull:
-            span = table["internal_pull"]
-            if not (isinstance(span, list) and len(span) == 2):
-                raise ValueParseError(
-                    str(span),
-                    expected='a range ["30k", "50k"] or "none"',
-                    field="internal_pull",
-                    part=part,
-                )
-            lo, hi = (parse_resistance(str(t), field="internal_pull", part=part) for t in span)
-            if lo > hi:
-                raise ValueParseError(
-                    str(span), expected="the smaller value first", field="internal_pull", part=part
-                )
-            pull = (Sourced(lo, src), Sourced(hi, src))
-        schmitt = table.get("schmitt_inputs", False)
-        if not isinstance(schmitt, bool):
-            raise ValueParseError(
-                str(schmitt), expected="true or false", field="schmitt_inputs", part=part
-            )
-        entries.append(
-            LibraryEntry(
-                name=name,
-                match=_globs(table, "match", name, part),
-                kind=kinds[kind_word],
-                family=family,
-                pins=_globs(table, "pins", "*", part),
-                schmitt=schmitt,
-                internal_pull=pull,
-                ratings=MappingProxyType(ratings),
-                no_internal_pull=no_pull,
-            )
-        )
+                exc.text,
+                expected=exc.expected,
+                field=exc.field,
+                part=f"[part.{name}]",
+                location=Location(str(path), _key_line(text, name, key), 1),
+            ) from None
     return PartLibrary(tuple(entries))
+
+
+def _entry(name: str, table: Any, path: Path) -> LibraryEntry:
+    """One ``[part.NAME]`` table (errors are placed by the caller)."""
+    part = f"{path.name} [part.{name}]"
+    if not isinstance(table, dict):
+        raise ValueParseError(str(table), expected="a table of keys", part=part)
+    kind_word = str(table.get("kind", "microcontroller"))
+    kinds = {k.value: k for k in PartKind}
+    if kind_word not in kinds:
+        raise ValueParseError(
+            kind_word, expected=f"one of {', '.join(kinds)}", field="kind", part=part
+        )
+    family = None
+    if "supply" in table:
+        family = family_from_table(
+            name, table, str(path), origin=Origin.PART_LIBRARY, extra_keys=_ENTRY_KEYS
+        )
+    src = Provenance(Origin.PART_LIBRARY, f"part library entry {name} ({path.name})",
+                     Status.USER, str(table.get("note", "")))  # fmt: skip
+    assumed = table.get("status") == ASSUMED_WORD  # a skeleton not yet filled in
+    ratings = {
+        key: Sourced(
+            reader(str(table[key]), field=key, part=part),
+            _assumed_entry(src, key, str(table[key]), name, path.name) if assumed else src,
+        )
+        for key, reader in _RATING_READERS.items()
+        if key in table
+    }
+    pull = None
+    no_pull = str(table.get("internal_pull", "")).strip().lower() == "none"
+    if "internal_pull" in table and not no_pull:
+        span = table["internal_pull"]
+        if not (isinstance(span, list) and len(span) == 2):
+            raise ValueParseError(
+                str(span),
+                expected='a range ["30k", "50k"] or "none"',
+                field="internal_pull",
+                part=part,
+            )
+        lo, hi = (parse_resistance(str(t), field="internal_pull", part=part) for t in span)
+        if lo > hi:
+            raise ValueParseError(
+                str(span), expected="the smaller value first", field="internal_pull", part=part
+            )
+        pull = (Sourced(lo, src), Sourced(hi, src))
+    schmitt = table.get("schmitt_inputs", False)
+    if not isinstance(schmitt, bool):
+        raise ValueParseError(
+            str(schmitt), expected="true or false", field="schmitt_inputs", part=part
+        )
+    return LibraryEntry(
+        name=name,
+        match=_globs(table, "match", name, part),
+        kind=kinds[kind_word],
+        family=family,
+        pins=_globs(table, "pins", "*", part),
+        schmitt=schmitt,
+        internal_pull=pull,
+        ratings=MappingProxyType(ratings),
+        no_internal_pull=no_pull,
+    )
 
 
 # ---------------------------------------------------------------- resolved part
@@ -537,6 +583,10 @@ def _resistor(part: Part, rules: Rules) -> tuple[ResistorInfo, tuple[Missing, ..
     role = (part.field("pullproof.role") or "").strip().lower()
     if role not in ("", "pull", "skip"):
         raise ValueParseError(role, expected="pull or skip", field="pullproof.role", part=part.ref)
+    impossible = _impossible_band(part, rules, tol, tcr, power)
+    if impossible:  # in the Value text: as unreadable as a placeholder
+        missing.append(Missing(f"resistance of {part.ref}", part.ref, impossible))
+        ohms = None
     info = ResistorInfo(
         ohms=ohms,
         tolerance=tol or rules.get("resistor.tolerance"),
@@ -547,6 +597,37 @@ def _resistor(part: Part, rules: Rules) -> tuple[ResistorInfo, tuple[Missing, ..
         role=role,
     )
     return info, tuple(missing)
+
+
+def _impossible_band(
+    part: Part, rules: Rules, tol: Sourced | None, tcr: Sourced | None, power: Sourced | None
+) -> str:
+    """Refuse a tolerance, TCR or power rating no real resistor has: a band that reaches
+    zero or below (tolerance ≥ 100 %, TCR × temperature span ≥ 1) or a zero rating would
+    divide by zero or turn a limit around. A bad field is an error naming it; the same in
+    the Value text makes the Value unreadable: the returned hint says why ("" when fine).
+
+    Raises:
+        ValueParseError: the Tolerance, TCR or Power field is impossible.
+    """
+    span = max_temperature_span(rules.values)
+    checks: tuple[tuple[str, Sourced | None, str, Callable[[float], bool], str], ...] = (
+        ("Tolerance", tol, "", lambda x: 0 <= x < 1, "a tolerance below 100%"),
+        ("TCR", tcr, "1/K", lambda x: 0 <= x * span < 1,
+         f"a TCR whose drift over the rules' {span:g} K span stays below 100%"),
+        ("Power", power, "W", lambda x: x > 0, "a power rating above zero"),
+    )  # fmt: skip
+    for name, value, unit, ok, expected in checks:
+        if value is None or ok(value.magnitude(unit)):
+            continue
+        if value.source.origin is Origin.FIELD:
+            text = part.field(name) or ""
+            raise ValueParseError(text, expected=expected, field=name, part=part.ref)
+        if value.source.origin is Origin.VALUE:
+            return (
+                f"the Value {excerpt(part.value)} states an impossible {name}; expected {expected}"
+            )
+    return ""
 
 
 _INPUT_FIELDS: Mapping[str, tuple[str, Callable[..., Any]]] = MappingProxyType(

@@ -16,6 +16,7 @@ from ..results import (
     Verdict,
 )
 from .format import format_quantity
+from .safe_text import for_terminal
 
 __all__ = ["changes_table", "finding_line", "network_line", "review_table"]
 
@@ -52,6 +53,9 @@ def _accepted_line(what: str, mark: AcceptanceMark) -> str:
 
 
 def _table(rows: list[list[str]]) -> str:
+    # Cells are escaped before they are measured, so a control character in a name can
+    # neither drive the terminal nor break the columns.
+    rows = [[for_terminal(cell, keep="") for cell in row] for row in rows]
     widths = [max(len(row[i]) for row in rows) for i in range(len(rows[0]))]
     lines = []
     for n, row in enumerate(rows):

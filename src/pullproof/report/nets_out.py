@@ -6,6 +6,7 @@ from pathlib import Path
 from typing import Any
 
 from ..circuit import Circuit
+from .safe_text import for_terminal
 
 __all__ = ["SCHEMA", "nets_json", "nets_table"]
 
@@ -45,9 +46,11 @@ def nets_table(circuit: Circuit) -> str:
         f"{len(circuit.parts)} part(s), {len(circuit.nets)} net(s)",
         "",
     ]
-    width = max((len(n.name) + 8 * n.power for n in circuit.nets), default=0)
-    for net in circuit.nets:
-        tag = f"{net.name} [power]" if net.power else net.name
+    names = [for_terminal(n.name, keep="") for n in circuit.nets]  # escaped, then measured
+    pairs = list(zip(names, circuit.nets, strict=True))
+    width = max((len(name) + 8 * n.power for name, n in pairs), default=0)
+    for name, net in pairs:
+        tag = f"{name} [power]" if net.power else name
         pins = " ".join(f"{m.ref}.{m.pin}" + (f"({m.name})" if m.name else "") for m in net.members)
         lines.append(f"{tag:<{width}}  {pins}")
     return "\n".join(lines) + "\n"

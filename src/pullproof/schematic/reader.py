@@ -12,8 +12,10 @@ import re
 from pathlib import Path
 from types import MappingProxyType
 
-from ..errors import SchematicError, SourceText
+from ..errors import SchematicError, SourceText, excerpt
+from ..limits import DEFAULT_MAX_FILE_BYTES, MAX_BUS_MEMBERS, MAX_COORDINATE_MM, TokenBudget
 from ..sexpr import Node, parse
+from ..textfile import decode_utf8, read_regular
 from .geometry import to_um
 from .model import (
     Label,
@@ -45,8 +47,23 @@ _ESCAPES = MappingProxyType(
     }
 )
 _ESCAPE_RE = re.compile(r"\{(" + "|".join(_ESCAPES) + r")\}")
-_SUB_SYMBOL = re.compile(r"^(?P<base>.*)_(?P<unit>\d+)_(?P<style>\d+)$")
+_SUB_SYMBOL = re.compile(r"^(?P<base>.*)_(?P<unit>\d{1,9})_(?P<style>\d{1,9})$")
 _LABEL_KINDS = frozenset({"label", "global_label", "hierarchical_label"})
+_VECTOR_RANGE = re.compile(r"\[(\d+)\.\.(\d+)\]")
+# The first list of a schematic, and the heads of the format's other files (named, never
+# quoted: nothing of a file that is not a schematic is shown).
+_HEAD = re.compile(r"\s*\(\s*(?P<head>[^\s()\"]{1,40})")
+_OTHER_FILES = MappingProxyType(
+    {
+        "kicad_pcb": "a board",
+        "kicad_symbol_lib": "a symbol library",
+        "footprint": "a footprint",
+        "module": "a footprint",
+        "kicad_wks": "a drawing sheet",
+        "fp_lib_table": "a footprint library table",
+        "sym_lib_table": "a symbol library table",
+    }
+)
 
 
 def unescape(name: str) -> str:
@@ -85,8 +102,34 @@ class _Reader:
         sub = node.first(head)
         return default if sub is None else round(self.num(sub, 0))
 
+    def coordinate(self, node: Node, index: int) -> int:
+        value = self.num(node, index)
+        if not -MAX_COORDINATE_MM <= value <= MAX_COORDINATE_MM:
+            raise self.error(
+                node,
+                f"coordinate {value:g} mm is outside the sheet (at most ±{MAX_COORDINATE_MM} mm)",
+            )
+        return to_um(value)
+
     def point(self, node: Node) -> Point:
-        return to_um(self.num(node, 0)), to_um(self.num(node, 1))
+        return self.coordinate(node, 0), self.coordinate(node, 1)
+
+    def name(self, node: Node) -> str:
+        """An unescaped label or sheet-pin name; the members a bus name stands for are bounded.
+
+        Every member a bus name expands to comes from a range ``[a..b]`` in it (or is one
+        word of a group, bounded by the name's length), so the ranges are counted.
+        """
+        text = unescape(self.text(node))
+        members = 0
+        for a, b in _VECTOR_RANGE.findall(text):
+            wide = max(len(a), len(b)) > 9  # more digits than any bus: too many, unread
+            members += MAX_BUS_MEMBERS + 1 if wide else abs(int(b) - int(a)) + 1
+            if members > MAX_BUS_MEMBERS:
+                raise self.error(
+                    node, f"bus {excerpt(text)} has more than {MAX_BUS_MEMBERS} members"
+                )
+        return text
 
     def at(self, node: Node) -> tuple[Point, float]:
         sub = node.first("at")
@@ -187,9 +230,7 @@ class _Reader:
         file_node = props.get("Sheetfile") or props.get("Sheet file")
         if file_node is None:
             raise self.error(node, "sheet has no Sheetfile property")
-        pins = tuple(
-            SheetPin(unescape(self.text(p)), self.at(p)[0], p.span) for p in node.nodes("pin")
-        )
+        pins = tuple(SheetPin(self.name(p), self.at(p)[0], p.span) for p in node.nodes("pin"))
         return SheetBlock(
             name="" if name_node is None else self.text(name_node, 1),
             file=self.text(file_node, 1),
@@ -200,11 +241,6 @@ class _Reader:
         )
 
     def read(self, root: Node) -> SchematicFile:
-        if root.head != "kicad_sch":
-            found = root.head or "a list with no name"
-            raise self.error(
-                root, f"not a schematic: the top-level list is {found!r}, expected 'kicad_sch'"
-            )
         lib: dict[str, LibSymbol] = {}
         symbols: list[SymbolPlacement] = []
         wires: list[Wire] = []
@@ -231,7 +267,7 @@ class _Reader:
             elif head == "no_connect":
                 no_connects.append(self.at(node)[0])
             elif head in _LABEL_KINDS:
-                labels.append(Label(head, unescape(self.text(node)), self.at(node)[0], node.span))
+                labels.append(Label(head, self.name(node), self.at(node)[0], node.span))
             elif head == "sheet":
                 sheets.append(self.sheet(node))
             elif head == "symbol_instances":
@@ -254,7 +290,7 @@ class _Reader:
         )
 
 
-def read_text(text: str, name: str) -> SchematicFile:
+def read_text(text: str, name: str, budget: TokenBudget | None = None) -> SchematicFile:
     """Read schematic text.
 
     :param text: the file's text.
@@ -262,22 +298,39 @@ def read_text(text: str, name: str) -> SchematicFile:
     :raises SchematicSyntaxError: malformed S-expression text.
     :raises SchematicError: well-formed text that is not a readable schematic.
     """
-    return _Reader(SourceText(name, text)).read(parse(text, name))
+    src = SourceText(name, text)
+    _check_head(src)
+    return _Reader(src).read(parse(text, name, budget))
 
 
-def read_path(path: Path, name: str) -> tuple[SchematicFile, str]:
+def _check_head(src: SourceText) -> None:
+    """Refuse text that does not open with ``(kicad_sch`` before anything of it is parsed.
+
+    A sheet reference may name any file; the error must not show what that file holds.
+    """
+    m = _HEAD.match(src.text)
+    head = m.group("head") if m else ""
+    if head == "kicad_sch" or not src.text.strip():  # an empty file: the parser says so
+        return
+    what = _OTHER_FILES.get(head)
+    found = f"it is {what} file ({head})" if what else "it does not start with '(kicad_sch'"
+    where = src.locate(len(src.text) - len(src.text.lstrip()))
+    raise SchematicError(f"not a schematic: {found}", where)
+
+
+def read_path(
+    path: Path,
+    name: str,
+    max_bytes: int = DEFAULT_MAX_FILE_BYTES,
+    budget: TokenBudget | None = None,
+) -> tuple[SchematicFile, str]:
     """Read a schematic file; return the model and the text (for later splicing).
 
-    :raises OSError: the file cannot be opened (the caller knows where it was named).
+    :raises Unreadable: the file cannot be opened, is not a regular file or is larger
+        than ``max_bytes`` (the caller knows where it was named).
     :raises SchematicError: the bytes are not UTF-8 text, or the text is not a schematic.
     """
-    data = path.read_bytes()
-    try:
-        text = data.decode("utf-8")
-    except UnicodeDecodeError as exc:
-        head = data[: exc.start].decode("utf-8", errors="replace")
-        loc = SourceText(name, head).locate(len(head))
-        raise SchematicError("the file is not UTF-8 text", loc) from None
+    text = decode_utf8(read_regular(path, max_bytes), name, SchematicError, "file")
     if text.startswith("\ufeff"):
         text = " " + text[1:]  # same length, so spans still index the file's text
-    return read_text(text, name), text
+    return read_text(text, name, budget), text

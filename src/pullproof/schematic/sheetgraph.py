@@ -2,25 +2,28 @@
 
 Items connect where their points are equal (wire ends, pin points, junctions,
 sheet pins, label anchors). A wire end, junction or label anchored on another
-wire's interior joins that wire. Points and segments live in hash grids, so no
-step scans pairs. The result is the same for every instance of the file; names
+wire's interior joins that wire. Points live in a hash table and segments are
+indexed by the line they lie on, so no step scans pairs and none depends on a
+segment's length. The result is the same for every instance of the file; names
 and hierarchy are applied per instance by :mod:`pullproof.nets`.
 """
 
 from __future__ import annotations
 
+import heapq
+import math
 from collections import defaultdict
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 
+from ..errors import SchematicError
+from ..limits import MAX_WIRE_DIRECTIONS
 from .busnames import bus_members
 from .geometry import place_pin
 from .model import LibPin, LibSymbol, Point, SchematicFile, Wire
 from .reader import unescape
 
 __all__ = ["PowerPin", "SheetGraph", "sheet_graph"]
-
-_CELL = 5080  # µm; two grid pitches of 2.54 mm
 
 
 class _UnionFind:
@@ -47,20 +50,30 @@ class _UnionFind:
 
 
 class _Layer:
-    """Points and segments of one kind (wires, or buses) joined by a union-find."""
+    """Points and segments of one kind (wires, or buses) joined by a union-find.
+
+    A point joins a segment whose interior it lies on. Segments are indexed by the line
+    they lie on (direction reduced to lowest terms, and the line's offset), and the
+    points asked about are swept along each line once: nothing is ever done per cell or
+    per unit of a segment's length, and overlapping segments cost no more than others.
+    ``attach`` records the question; :meth:`settle` answers them all before groups are read.
+    """
 
     def __init__(self, segments: Iterable[Wire]) -> None:
         self.uf = _UnionFind()
         self.points: dict[Point, int] = {}
-        self.segments = list(segments)
-        self.grid: dict[tuple[int, int], list[int]] = defaultdict(list)
-        for s_index, seg in enumerate(self.segments):
-            self.uf.union(self.point(seg.a), self.point(seg.b))
-            x0, x1 = sorted((seg.a[0] // _CELL, seg.b[0] // _CELL))
-            y0, y1 = sorted((seg.a[1] // _CELL, seg.b[1] // _CELL))
-            for cx in range(x0, x1 + 1):
-                for cy in range(y0, y1 + 1):
-                    self.grid[cx, cy].append(s_index)
+        self.lines: dict[tuple[int, int, int], list[tuple[int, int, int]]] = defaultdict(list)
+        self.pending: list[tuple[Point, int]] = []
+        for seg in segments:
+            a_node = self.point(seg.a)
+            self.uf.union(a_node, self.point(seg.b))
+            if seg.a == seg.b:
+                continue
+            key, t0, t1 = _on_line(seg.a, seg.b)
+            self.lines[key].append((t0, t1, a_node))
+        self.directions = sorted({(k[0], k[1]) for k in self.lines})
+        if len(self.directions) > MAX_WIRE_DIRECTIONS:
+            raise _TooManyDirections(len(self.directions))
 
     def point(self, p: Point) -> int:
         node = self.points.get(p)
@@ -68,27 +81,65 @@ class _Layer:
             node = self.points[p] = self.uf.add()
         return node
 
-    def on_segment(self, p: Point) -> list[int]:
-        """Indexes of the segments whose closed extent holds ``p``."""
-        found = []
-        for s_index in self.grid.get((p[0] // _CELL, p[1] // _CELL), ()):
-            a, b = self.segments[s_index].a, self.segments[s_index].b
-            cross = (b[0] - a[0]) * (p[1] - a[1]) - (b[1] - a[1]) * (p[0] - a[0])
-            if (
-                cross == 0
-                and min(a[0], b[0]) <= p[0] <= max(a[0], b[0])
-                and min(a[1], b[1]) <= p[1] <= max(a[1], b[1])
-            ):
-                found.append(s_index)
-        return found
-
     def attach(self, p: Point, *, interior: bool) -> int:
-        """The node of point ``p``, joined to any segment it lies on when ``interior``."""
+        """The node of point ``p``, to be joined to any segment it lies on when ``interior``."""
         node = self.point(p)
         if interior:
-            for s_index in self.on_segment(p):
-                self.uf.union(node, self.point(self.segments[s_index].a))
+            self.pending.append((p, node))
         return node
+
+    def settle(self) -> None:
+        """Join every attached point to the segments whose closed extent holds it."""
+        asked: dict[tuple[int, int, int], list[tuple[int, int]]] = defaultdict(list)
+        for (x, y), node in self.pending:
+            for ux, uy in self.directions:
+                key = (ux, uy, ux * y - uy * x)
+                if key in self.lines:
+                    asked[key].append((ux * x + uy * y, node))
+        self.pending.clear()
+        for key, queries in asked.items():
+            self._sweep(sorted(self.lines[key]), sorted(queries))
+
+    def _sweep(self, segs: list[tuple[int, int, int]], queries: list[tuple[int, int]]) -> None:
+        """One line: segments (t0, t1, node) and points (t, node), both sorted by t."""
+        active: list[tuple[int, int]] = []  # min-heap of (t1, node): the first to end on top
+        i = 0
+        for t, node in queries:
+            while i < len(segs) and segs[i][0] <= t:
+                heapq.heappush(active, (segs[i][1], segs[i][2]))
+                i += 1
+            while active and active[0][0] < t:  # ended before this point: gone for good
+                heapq.heappop(active)
+            if not active:
+                continue
+            # Every active segment holds t; once joined they are one group, and the one
+            # reaching furthest holds every later point any of them holds.
+            for _, seg_node in active:
+                self.uf.union(node, seg_node)
+            active[:] = [max(active)]
+
+
+class _TooManyDirections(ValueError):
+    """More distinct wire directions in one file than the connectivity search allows."""
+
+    def __init__(self, count: int) -> None:
+        super().__init__(count)
+        self.count = count
+
+
+def _on_line(a: Point, b: Point) -> tuple[tuple[int, int, int], int, int]:
+    """The line through ``a`` and ``b`` as (ux, uy, offset), and the span (t0, t1) on it.
+
+    (ux, uy) is the direction in lowest terms, pointing right (or down); a point (x, y)
+    lies on the line when ux·y − uy·x equals the offset, at position t = ux·x + uy·y.
+    """
+    dx, dy = b[0] - a[0], b[1] - a[1]
+    g = math.gcd(dx, dy)
+    ux, uy = dx // g, dy // g
+    if ux < 0 or (ux == 0 and uy < 0):
+        ux, uy = -ux, -uy
+    ta, tb = ux * a[0] + uy * a[1], ux * b[0] + uy * b[1]
+    return (ux, uy, ux * a[1] - uy * a[0]), min(ta, tb), max(ta, tb)
 
 
 @dataclass(frozen=True)
@@ -127,14 +178,19 @@ def sheet_graph(
     """
     if units is None:
         units = [sym.unit for sym in model.symbols]
-    wires = _Layer(model.wires)
+    try:
+        wires, buses = _Layer(model.wires), _Layer(model.buses)
+    except _TooManyDirections as exc:
+        raise SchematicError(
+            f"{model.name}: wires or buses in {exc.count} directions; at most "
+            f"{MAX_WIRE_DIRECTIONS} are followed (horizontal, vertical and 45° count as four)"
+        ) from None
     # Wire ends and junctions on another wire's interior join it.
     for seg in model.wires:
         wires.attach(seg.a, interior=True)
         wires.attach(seg.b, interior=True)
     for junction in model.junctions:
         wires.attach(junction, interior=True)
-    buses = _Layer(model.buses)
     for seg in model.buses:
         buses.attach(seg.a, interior=True)
         buses.attach(seg.b, interior=True)
@@ -173,6 +229,8 @@ def sheet_graph(
                 row_pins.append(wires.point(sp.at))
         sheet_pins.append(tuple(row_pins))
 
+    wires.settle()
+    buses.settle()
     find = wires.uf.find
     bfind = buses.uf.find
     grouped: dict[int, list[tuple[str, int, int]]] = defaultdict(list)
