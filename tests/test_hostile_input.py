@@ -220,7 +220,7 @@ CASES: list[tuple[str, Callable[[Path], None], list[str], str]] = [
     ("bad part-library status", _edit(PARTS, 'status = "example"', 'status = "guess"'),
      ["review", ROOT],
      f"{PARTS}:19:1: field 'status' of [part.GENERIC-MCU33]: cannot read 'guess'; expected a "
-     "status: confirmed, from memory, common practice, user, example"),
+     "status: confirmed, from memory, common practice, user, example, assumed"),
     # --- size limits, checked before parsing
     ("a 50 MB file", _sparse("big.kicad_sch", 50_000_000), ["nets", "big.kicad_sch"],
      "pullproof: cannot read big.kicad_sch: the file is 50 MB, above the limit of 10 MB "
