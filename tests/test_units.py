@@ -6,9 +6,10 @@ from collections.abc import Callable
 from typing import Any
 
 import pytest
-from pint.testing import assert_allclose
+from pint.testing import assert_allclose as _pint_allclose
 
 from pullproof.errors import ValueParseError
+from pullproof.quantity import Qty
 from pullproof.units import (
     Q_,
     parse_capacitance,
@@ -25,6 +26,16 @@ from pullproof.units import (
     parse_voltage,
     parse_voltage_ac,
 )
+
+
+def assert_allclose(actual: Any, expected: Any, **kw: Any) -> None:
+    """pint's own comparison (the reference for units), on our values made pint quantities."""
+
+    def as_pint(q: Any) -> Any:
+        return q.pint() if isinstance(q, Qty) else q
+
+    _pint_allclose(as_pint(actual), as_pint(expected), **kw)
+
 
 Parser = Callable[..., Any]
 

@@ -11,6 +11,8 @@ from dataclasses import dataclass
 from enum import StrEnum
 from typing import Any
 
+from .quantity import Qty
+
 __all__ = ["Origin", "Provenance", "Sourced", "Stands", "Status"]
 
 
@@ -94,9 +96,12 @@ class Sourced:
 
     def magnitude(self, unit: str) -> float:
         """The value as a float in ``unit`` (use "" for a dimensionless ratio)."""
+        value = self.value
+        if type(value) is Qty:
+            return value.m_as(unit)
         from .units import ureg
 
-        q = self.value if hasattr(self.value, "to") else ureg.Quantity(self.value)
+        q = value if hasattr(value, "to") else ureg.Quantity(value)
         held = getattr(q, "_units", None)
         if held is not None:
             # Most values are asked for in the unit they are held in; converting through pint

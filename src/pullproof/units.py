@@ -1,6 +1,7 @@
-"""The one pint unit registry, and parsers for values as designers write them.
+"""Quantities, the one pint unit registry, and parsers for values as designers write them.
 
-Every parser returns pint quantities (never bare floats) and raises
+Every parser returns a quantity (never a bare float: a :class:`~pullproof.quantity.Qty`
+in the base unit it was read in, which pint checks and prints at the edges) and raises
 :class:`~pullproof.errors.ValueParseError` naming the text, the field and the
 part when the text cannot be read. Nothing is guessed: a lowercase ``m`` on a
 bare resistance (milli or mega?), a stray trailing letter, a sign where none
@@ -30,9 +31,8 @@ from dataclasses import dataclass
 from decimal import Decimal, InvalidOperation
 from typing import Any
 
-import pint
-
 from .errors import ValueParseError
+from .quantity import Qty, canonical_unit, pint_registry
 
 __all__ = [
     "Q_",
@@ -52,11 +52,26 @@ __all__ = [
     "parse_time",
     "parse_voltage",
     "parse_voltage_ac",
-    "ureg",
 ]
 
-ureg: Any = pint.UnitRegistry()
-Q_ = ureg.Quantity
+
+
+def Q_(value: Any, unit: Any = "") -> Any:
+    """A quantity: a :class:`Qty` in a natively held unit (V, A, ohm, F, s, W, 1/K, "",
+    degC, K), else a pint quantity. Unit strings are read once, never per value."""
+    key = canonical_unit(unit)
+    if key is not None:
+        return Qty(value, key)
+    return pint_registry().Quantity(value, unit)
+
+
+def __getattr__(name: str) -> Any:
+    # ``units.ureg`` is the pint registry, created on first use: loading pint costs most
+    # of a second, and a review that stays within the natively held units never needs it.
+    if name == "ureg":
+        return pint_registry()
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+
 
 Quantity = Any  # pint ships no type stubs
 
@@ -580,7 +595,7 @@ def parse_temperature(text: str, *, field: str | None = None, part: str | None =
     if m is None:
         raise _fail(text, _EXPECT_TEMP, field, part)
     value = _finite(_decimal(m.group("num"), 0), text, _EXPECT_TEMP, field, part)
-    return Q_(-value if m.group("sign") == "-" else value, ureg.degC)
+    return Q_(-value if m.group("sign") == "-" else value, "degC")
 
 
 # ---------------------------------------------------------------- formatting

@@ -10,7 +10,8 @@ from __future__ import annotations
 from typing import Any
 
 from ..provenance import Sourced
-from ..units import format_si, ureg
+from ..quantity import Qty, pint_registry
+from ..units import format_si
 
 __all__ = [
     "NBSP",
@@ -106,9 +107,11 @@ def format_quantity(value: Any) -> str:
     """
     if not hasattr(value, "to"):
         return format_percent(float(value))
+    if type(value) is Qty:
+        return _format_qty(value)
     units = str(value.units)
     if units in ("degree_Celsius", "kelvin"):
-        return f"{_digits(float(value.to(ureg.degC).magnitude))}{NBSP}°C"
+        return f"{_digits(float(value.to('degC').magnitude))}{NBSP}°C"
     if units in ("delta_degree_Celsius",):
         return f"{_digits(float(value.to('kelvin').magnitude))}{NBSP}K"
     if value.dimensionless:
@@ -119,10 +122,29 @@ def format_quantity(value: Any) -> str:
         volts = float(value.to("volt").magnitude)
         if 0.1 <= abs(volts) < 1000:  # designers write 0.8 V and 230 V, not 800 mV
             return f"{_digits(volts, 4)}{NBSP}V"
+    ureg = pint_registry()
     for base, symbol in _BASES:
         if value.check(ureg(base).dimensionality):
             return engineering(float(value.to(base).magnitude), symbol)
     return f"{value:~P}"
+
+
+_QTY_SYMBOL = {"ohm": "Ω", "V": "V", "A": "A", "W": "W", "F": "F", "s": "s"}
+
+
+def _format_qty(value: Qty) -> str:
+    """:func:`format_quantity` of a natively held quantity, without pint (same text)."""
+    unit = value.unit
+    if unit in ("degC", "K"):
+        return f"{_digits(value.m_as('degC'))}{NBSP}°C"
+    if unit == "":
+        return format_percent(float(value.magnitude))
+    if unit == "1/K":
+        return f"{_digits(float(value.magnitude) * 1e6)}{NBSP}ppm/K"
+    x = float(value.magnitude)
+    if unit == "V" and 0.1 <= abs(x) < 1000:  # designers write 0.8 V and 230 V, not 800 mV
+        return f"{_digits(x, 4)}{NBSP}V"
+    return engineering(x, _QTY_SYMBOL[unit])
 
 
 _SYMBOL = {"A": "A", "W": "W", "V": "V", "s": "s", "F": "F", "ohm": "Ω"}
