@@ -2,8 +2,14 @@
 
 from __future__ import annotations
 
-import pytest
+import math
 
+import pytest
+import sexpdata
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
+
+from conftest import FIXTURES, REALWORLD
 from pullproof.errors import SchematicSyntaxError
 from pullproof.sexpr import MAX_DEPTH, Node, Sym, parse
 
@@ -80,3 +86,83 @@ def test_malformed_text(text: str, where: str, message: str) -> None:
 def test_deep_but_legal_nesting_parses() -> None:
     text = "(" * MAX_DEPTH + ")" * MAX_DEPTH
     assert parse(text, "t").span == (0, len(text))
+
+
+# --- agreement with sexpdata, the general-purpose S-expression reader --------------------------
+
+
+def _loads(text: str) -> object:
+    return sexpdata.loads(text, nil=None, true=None, false=None, line_comment="\x00")
+
+
+def _same(ours: Node | object, theirs: object) -> bool:
+    """Our tree equals sexpdata's: lists, Symbols as Sym, str, int, float, in order. A head
+    is kept as text (quoted or bare alike), as the schematic model reads it."""
+    if not isinstance(ours, Node):
+        if type(ours) is Sym:
+            return type(theirs) is sexpdata.Symbol and str(theirs) == ours
+        return type(ours) is type(theirs) and ours == theirs
+    if not isinstance(theirs, list):
+        return False
+    if ours.head:
+        if not theirs or not isinstance(theirs[0], str) or str(theirs[0]) != ours.head:
+            return False
+        theirs = theirs[1:]
+    return len(ours.items) == len(theirs) and all(
+        _same(a, b) for a, b in zip(ours.items, theirs, strict=True)
+    )
+
+
+_SCHEMATICS = sorted(FIXTURES.rglob("*.kicad_sch")) + sorted(REALWORLD.rglob("*.kicad_sch"))
+
+
+@pytest.mark.parametrize("path", _SCHEMATICS, ids=lambda p: p.name)
+def test_every_schematic_reads_as_sexpdata_reads_it(path: object) -> None:
+    # The one-pass reader must give sexpdata's values and structure on every real file
+    # (fixtures and, when ../shared is present, the public designs); spans are checked by
+    # re-reading each list's own text.
+    text = path.read_text(encoding="utf-8")  # type: ignore[attr-defined]
+    node = parse(text, "t")
+    assert _same(node, _loads(text))
+    first = next(node.nodes(), None)
+    if first is not None:
+        again = parse(text[first.span[0] : first.span[1]], "t")
+        assert again == Node(first.head, again.items, again.span) and again.items == first.items
+
+
+def _finite_or_word(w: str) -> bool:
+    try:
+        return math.isfinite(float(w))  # inf and nan are refused on purpose (tested above)
+    except ValueError:
+        return True
+
+
+_word = st.text(
+    alphabet=st.characters(blacklist_characters="()\"\\[]'`\x00 \t\n\r\x0b\x0c"), min_size=1
+).filter(_finite_or_word)
+_string = st.text().map(lambda s: '"' + s.replace("\\", "\\\\").replace('"', '\\"') + '"')
+_escaped = st.sampled_from(['"a\\nb"', '"\\t\\r\\b\\f"', '"\\q"', '"x\\\\y"', '"\\"in\\""'])
+
+
+@st.composite
+def _documents(draw: st.DrawFn, depth: int = 0) -> str:
+    n = draw(st.integers(0, 4))
+    parts = [draw(st.one_of(_word, _string, _escaped, st.integers().map(str),
+                            st.floats(allow_nan=False, allow_infinity=False).map(repr)))
+             for _ in range(n)]  # fmt: skip
+    if depth < 3:
+        parts += [draw(_documents(depth + 1)) for _ in range(draw(st.integers(0, 2)))]
+    sep = draw(st.sampled_from([" ", "\n", "\t ", "  \r\n"]))
+    return "(" + sep.join(parts) + ")"
+
+
+@settings(max_examples=300, suppress_health_check=[HealthCheck.too_slow])  # first draw builds
+@given(_documents())  # the character table
+def test_random_documents_read_as_sexpdata_reads_them(text: str) -> None:
+    assert _same(parse(text, "t"), _loads(text))
+
+
+def test_an_integer_beyond_float_range_is_refused() -> None:
+    # found by the fuzz suite: int() reads 400 digits, but no coordinate or value can use it
+    with pytest.raises(SchematicSyntaxError, match=r"1:8: number '9+'… is not finite"):
+        parse("(a (at " + "9" * 400 + " 0))", "bad.kicad_sch")

@@ -1,11 +1,13 @@
 """S-expression text → :class:`Node` tree, with positions and one-line errors.
 
-sexpdata does the parsing of values (strings, numbers, symbols), but it keeps no
-positions and fails with assorted builtin exceptions on malformed text. So a small
-regex scanner runs first: it validates the text (balanced lists, terminated
-strings, finite numbers, a sane depth) and records the (start, end) offsets of
-every list in pre-order. sexpdata then parses the validated text and the spans
-are zipped onto its lists in the same pre-order.
+One pass of one regular expression reads the text: every token is validated (balanced
+lists, terminated strings, finite numbers, a sane depth, the token budget) and the tree
+is built as the lists close, each :class:`Node` carrying the offsets of its brackets.
+Values follow sexpdata's reading of the same text, so the two agree on every file this
+accepts (the test suite checks it on every fixture and shared design): numbers by
+``int()`` then ``float()``, everything else a bare symbol, ASCII whitespace between; a
+quoted string with a backslash in it is decoded by sexpdata itself. Reading the whole
+file through sexpdata as well, as before, cost a second tokenisation and a third tree.
 """
 
 from __future__ import annotations
@@ -70,96 +72,40 @@ class Node:
         return sub is not None and sub.atom(0, "yes") != "no"
 
 
-# Tokens: ( ) "string" bare-atom, plus a lone quote (an unterminated string).
+# Tokens: ( ) "string" lone-quote bare-word; ASCII whitespace between them, as in sexpdata
+# (a non-ASCII space is part of a word there, so it is here). NUL is caught on its own:
+# sexpdata would read it as a comment start, which no schematic contains.
+# finditer steps over the whitespace between matches (no whitespace group: a pattern that
+# consumed it would rescan a long blank tail once per character).
 _TOKEN = re.compile(
-    r"""
-    (?P<open>\() | (?P<close>\)) |
-    (?P<string>"(?:[^"\\]|\\.)*") |
-    (?P<unterminated>") |
-    (?P<atom>[^\s()"]+)
-    """,
-    re.VERBOSE | re.DOTALL,
+    r"""(\()|(\))|("(?:[^"\\]|\\.)*")|(")|(\x00)|([^()"\x00 \t\n\r\x0b\x0c]+)""", re.DOTALL
 )
 _NUMBERISH = frozenset("0123456789+-.nNiI")
 
 
-def _scan(src: SourceText, budget: TokenBudget | None = None) -> list[tuple[int, int]]:
-    """Validate ``src`` and return the spans of all lists in pre-order."""
-    text = src.text
-
-    def fail(offset: int, message: str) -> SchematicSyntaxError:
-        return SchematicSyntaxError(message, src.locate(offset))
-
-    spans: list[tuple[int, int]] = []
-    stack: list[int] = []  # indexes into spans of the open lists
-    closed_top = -1
-    limit = MAX_TOKENS_PER_FILE if budget is None else budget.for_file()
-    count = 0
-    for count, m in enumerate(_TOKEN.finditer(text), 1):
-        kind = m.lastgroup
-        pos = m.start()
-        if count > limit:
-            if limit < MAX_TOKENS_PER_FILE:
-                total = budget.total if budget is not None else MAX_TOKENS_TOTAL
-                raise fail(pos, f"the files read so far and this one hold more than "
-                                f"{total:,} lists and words")  # fmt: skip
-            raise fail(pos, f"more than {MAX_TOKENS_PER_FILE:,} lists and words in one file")
-        if closed_top >= 0:
-            raise fail(pos, "unexpected text after the end of the top-level list")
-        if kind == "open":
-            if len(stack) >= MAX_DEPTH:
-                raise fail(pos, f"lists nested deeper than {MAX_DEPTH} levels")
-            stack.append(len(spans))
-            spans.append((pos, -1))
-        elif kind == "close":
-            if not stack:
-                raise fail(pos, "unexpected ')' with no open '('")
-            i = stack.pop()
-            spans[i] = (spans[i][0], pos + 1)
-            if not stack:
-                closed_top = pos
-        elif kind == "unterminated":
-            raise fail(pos, "unterminated string: missing closing '\"'")
-        elif not stack:
-            raise fail(pos, f"expected '(' but found {excerpt(m.group())}")
-        elif kind == "atom":
-            tok = m.group()
-            # A backslash escapes the next character in sexpdata's bare words, so `\"` would
-            # start no string there but one here: the two would disagree on the lists.
-            if tok[0] in "'`" or "[" in tok or "]" in tok or "\\" in tok:
-                raise fail(pos, f"unexpected character in bare word {excerpt(tok)}; quote it")
-            if tok[0] in _NUMBERISH:
-                try:
-                    value = float(tok)
-                except ValueError:
-                    continue
-                if not math.isfinite(value):
-                    raise fail(pos, f"number {excerpt(tok)} is not finite")
-    if budget is not None:
-        budget.spend(count)
-    if stack:
-        raise fail(spans[stack[-1]][0], "unclosed '(': missing ')' before the end of the file")
-    if not spans:
-        raise fail(0, "empty file: expected a '(' list")
-    return spans
+def _unescape(token: str) -> str:
+    """A quoted string with escapes, decoded as sexpdata decodes it (``\\n`` is a newline…)."""
+    value = sexpdata.loads(token, nil=None, true=None, false=None, line_comment="\x00")
+    return str(value)
 
 
-def _build(value: list[Any], spans: Iterator[tuple[int, int]], src: SourceText) -> Node:
-    span = next(spans)
-    items: list[Node | Atom] = []
-    for v in value:
-        if isinstance(v, list):
-            items.append(_build(v, spans, src))
-        elif isinstance(v, sexpdata.Symbol):
-            items.append(Sym(v.value()))
-        elif isinstance(v, str | int | float):
-            items.append(v)
-        else:  # the scanner rejects every other construct; keep it loud if that changes
-            raise SchematicSyntaxError(
-                f"unsupported element {excerpt(repr(v))}", src.locate(span[0])
-            )
-    head = items[0] if items and isinstance(items[0], str) else ""
-    return Node(str(head), tuple(items[1:] if head else items), span)
+def _number(tok: str) -> int | float | None:
+    """The number a bare word spells (by ``int()`` then ``float()``), or None."""
+    try:
+        return int(tok)
+    except ValueError:
+        try:
+            return float(tok)
+        except ValueError:
+            return None
+
+
+def _as_float(value: int | float) -> float:
+    """``value`` as a float, infinite where it is beyond a float's range (a 400-digit int)."""
+    try:
+        return float(value)
+    except OverflowError:
+        return math.inf
 
 
 def parse(text: str, name: str, budget: TokenBudget | None = None) -> Node:
@@ -171,17 +117,77 @@ def parse(text: str, name: str, budget: TokenBudget | None = None) -> Node:
     :raises SchematicSyntaxError: malformed text, as ``NAME:LINE:COL: what is wrong``.
     """
     src = SourceText(name, text)
-    spans = _scan(src, budget)
-    try:
-        value = sexpdata.loads(text, nil=None, true=None, false=None, line_comment="\x00")
-    except Exception as exc:  # sexpdata raises builtins of many kinds
-        raise SchematicSyntaxError(
-            f"cannot parse: {excerpt(str(exc), 60)}", src.locate(0)
-        ) from None
-    if not isinstance(value, list):
-        raise SchematicSyntaxError("expected a '(' list", src.locate(0))
-    it = iter(spans)
-    node = _build(value, it, src)
-    if next(it, None) is not None:
-        raise SchematicSyntaxError("list structure could not be matched", src.locate(0))
-    return node
+
+    def fail(offset: int, message: str) -> SchematicSyntaxError:
+        return SchematicSyntaxError(message, src.locate(offset))
+
+    limit = MAX_TOKENS_PER_FILE if budget is None else budget.for_file()
+    open_items: list[list[Node | Atom]] = []  # the items of each open list, outermost first
+    open_at: list[int] = []  # the offset of each open list's "("
+    items: list[Node | Atom] | None = None  # the innermost open list's items
+    top: Node | None = None
+    count = 0
+    isfinite, Sym_, Node_ = math.isfinite, Sym, Node
+    for m in _TOKEN.finditer(text):
+        kind = m.lastindex
+        count += 1
+        pos = m.start()
+        if count > limit:
+            if limit < MAX_TOKENS_PER_FILE:
+                total = budget.total if budget is not None else MAX_TOKENS_TOTAL
+                raise fail(pos, f"the files read so far and this one hold more than "
+                                f"{total:,} lists and words")  # fmt: skip
+            raise fail(pos, f"more than {MAX_TOKENS_PER_FILE:,} lists and words in one file")
+        if top is not None:
+            raise fail(pos, "unexpected text after the end of the top-level list")
+        if kind == 1:  # (
+            if len(open_at) >= MAX_DEPTH:
+                raise fail(pos, f"lists nested deeper than {MAX_DEPTH} levels")
+            items = []
+            open_items.append(items)
+            open_at.append(pos)
+        elif kind == 2:  # )
+            if items is None:
+                raise fail(pos, "unexpected ')' with no open '('")
+            open_items.pop()
+            first = items[0] if items else None
+            if first and isinstance(first, str):  # a list headed by "" keeps it as an item
+                node = Node_(str(first), tuple(items[1:]), (open_at.pop(), pos + 1))
+            else:
+                node = Node_("", tuple(items), (open_at.pop(), pos + 1))
+            if open_items:
+                items = open_items[-1]
+                items.append(node)
+            else:
+                items, top = None, node
+        elif kind == 4:
+            raise fail(pos, "unterminated string: missing closing '\"'")
+        elif kind == 5:
+            raise fail(pos, "NUL character in the text")
+        elif items is None:
+            raise fail(pos, f"expected '(' but found {excerpt(m.group())}")
+        elif kind == 3:  # "string"
+            tok = m.group(3)
+            items.append(_unescape(tok) if "\\" in tok else tok[1:-1])
+        else:  # bare word
+            tok = m.group(6)
+            c = tok[0]
+            # A backslash escapes the next character in sexpdata's bare words, so `\"` would
+            # start no string there but one here: refuse rather than guess which was meant.
+            if c in "'`" or "[" in tok or "]" in tok or "\\" in tok:
+                raise fail(pos, f"unexpected character in bare word {excerpt(tok)}; quote it")
+            if c in _NUMBERISH or not c.isascii():  # int() reads non-ASCII digits too
+                value = _number(tok)
+                if value is not None:
+                    if not isfinite(value if type(value) is float else _as_float(value)):
+                        raise fail(pos, f"number {excerpt(tok)} is not finite")
+                    items.append(value)
+                    continue
+            items.append(Sym_(tok))
+    if budget is not None:
+        budget.spend(count)
+    if items is not None:
+        raise fail(open_at[-1], "unclosed '(': missing ')' before the end of the file")
+    if top is None:
+        raise fail(0, "empty file: expected a '(' list")
+    return top
