@@ -168,3 +168,26 @@ def test_partition_invariant_under_transform(
     base = partition(_draw(tmp, 0, False, 0, 0))
     assert {frozenset({("R1", "2"), ("SW1", "2"), ("U1", "1")})} <= base
     assert partition(_draw(tmp, turns, flip, dx, dy)) == base
+
+
+def test_union_find_stays_shallow_on_a_100k_pin_chain() -> None:
+    # Union by size keeps every tree at most log2(n) deep (a textbook property of the
+    # structure), so joining a 100 000-pin net in a chain, in either order, stays linear.
+    # Checked by depth, not by time: no timings in tests.
+    from pullproof.nets import _Joiner
+
+    n = 100_000
+    for order in (range(n - 1), reversed(range(n - 1))):
+        j = _Joiner()
+        for i in order:
+            j.union(("P", "R", i), ("P", "R", i + 1))
+        parent = j.parent
+
+        def depth(key: object) -> int:
+            d = 0
+            while parent[key] != key:
+                key, d = parent[key], d + 1
+            return d
+
+        assert max(depth(k) for k in parent) <= n.bit_length()
+        assert len({j.find(k) for k in parent}) == 1

@@ -63,24 +63,34 @@ def natural_key(text: str) -> tuple[tuple[int, int | str], ...]:
 
 
 class _Joiner:
-    """Union-find over hashable keys (groups, names, pins)."""
+    """Union-find over hashable keys (groups, names, pins), by size with path halving, so a
+    net of any size (a ground of 100 000 pins) costs near-constant time per join."""
+
+    __slots__ = ("parent", "size")
 
     def __init__(self) -> None:
         self.parent: dict[Hashable, Hashable] = {}
+        self.size: dict[Hashable, int] = {}
 
     def find(self, key: Hashable) -> Hashable:
         parent = self.parent
-        root = parent.setdefault(key, key)
-        while root != parent[root]:
-            root = parent[root]
-        while key != root:
-            key, parent[key] = parent[key], root
-        return root
+        up = parent.setdefault(key, key)
+        while up != key:
+            grand = parent[up]
+            parent[key] = grand  # halve the path: every node on it now skips one
+            key, up = grand, parent[grand]
+        return key
 
     def union(self, a: Hashable, b: Hashable) -> None:
         ra, rb = self.find(a), self.find(b)
-        if ra != rb:
-            self.parent[ra] = rb
+        if ra == rb:
+            return
+        size = self.size
+        sa, sb = size.get(ra, 1), size.get(rb, 1)
+        if sa > sb:
+            ra, rb = rb, ra
+        self.parent[ra] = rb  # the smaller tree goes under the larger
+        size[rb] = sa + sb
 
 
 def _reference(sym: SymbolPlacement, inst: Instance, hier: Hierarchy) -> tuple[str, int]:
