@@ -21,7 +21,7 @@ from typing import TYPE_CHECKING
 from . import __version__
 from .errors import EXIT_FINDINGS, EXIT_INPUT, EXIT_INTERNAL, PullproofError
 from .limits import DEFAULT_MAX_FILE_BYTES, DEFAULT_MAX_TOTAL_BYTES, InputPolicy
-from .report.safe_text import for_terminal, json_chunks, json_text
+from .report.safe_text import for_terminal, json_text, write_json_safely
 
 __all__ = ["main"]
 
@@ -119,8 +119,7 @@ def _cmd_review(args: argparse.Namespace) -> int:
     if args.json:
         # streamed, not built as one string: with every candidate's operating point a large
         # board's document is tens of megabytes
-        for chunk in json_chunks(review_json(result)):
-            sys.stdout.write(chunk)
+        write_json_safely(review_json(result), sys.stdout.write)
         sys.stdout.write("\n")
     else:
         _out(review_table(result))

@@ -10,13 +10,15 @@ every JSON document through :func:`json_text`, which also escapes C1 and bidi ch
 
 from __future__ import annotations
 
-import json
+import functools
 import re
 import unicodedata
-from collections.abc import Iterator
+from collections.abc import Callable
 from typing import Any
 
-__all__ = ["UNSAFE_CATEGORIES", "for_terminal", "is_unsafe", "json_chunks", "json_text"]
+from .json_writer import write_json
+
+__all__ = ["UNSAFE_CATEGORIES", "for_terminal", "is_unsafe", "json_text", "write_json_safely"]
 
 # Unicode general categories never shown raw: controls (C0, DEL, C1), format characters
 # (bidi marks and isolates, zero-width characters, the BOM), lone surrogates, and the line
@@ -53,9 +55,9 @@ def for_terminal(text: str, *, keep: str = "\n") -> str:
     return _NOT_PLAIN.sub(repl, text)
 
 
-def _json_escape(m: re.Match[str]) -> str:
-    ch = m.group()
-    if ch == "\n" or not is_unsafe(ch):  # json.dumps escapes newlines in strings: this is layout
+@functools.lru_cache(maxsize=4096)
+def _json_char(ch: str) -> str:
+    if not is_unsafe(ch):
         return ch
     cp = ord(ch)
     if cp < 0x10000:
@@ -64,12 +66,17 @@ def _json_escape(m: re.Match[str]) -> str:
     return f"\\u{0xD800 + (cp >> 10):04x}\\u{0xDC00 + (cp & 0x3FF):04x}"
 
 
-def json_chunks(doc: Any) -> Iterator[str]:
-    """:func:`json_text` piece by piece, for streaming a large document (each JSON string
-    is one piece of ``iterencode``, so no character is split between pieces)."""
-    encoder = json.JSONEncoder(indent=1, ensure_ascii=False)
-    for chunk in encoder.iterencode(doc):
-        yield _NOT_PLAIN.sub(_json_escape, chunk)
+def _json_escape(m: re.Match[str]) -> str:
+    return _json_char(m.group())
+
+
+# json.dumps escapes C0 controls inside strings, so a raw newline is the layout's own
+_NOT_PLAIN_JSON = re.compile(r"[^\x20-\x7e\n]")
+
+
+def write_json_safely(doc: Any, write: Callable[[str], object]) -> None:
+    """Write ``doc`` as :func:`json_text` does, piece by piece, for a large document."""
+    write_json(doc, lambda piece: write(_NOT_PLAIN_JSON.sub(_json_escape, piece)))
 
 
 def json_text(doc: Any) -> str:
@@ -79,4 +86,6 @@ def json_text(doc: Any) -> str:
     the layout's newlines; every other unsafe character is inside a string, where an
     escape changes no value: ``json.loads(json_text(d)) == d``.
     """
-    return "".join(json_chunks(doc))
+    pieces: list[str] = []
+    write_json_safely(doc, pieces.append)
+    return "".join(pieces)
