@@ -20,6 +20,7 @@ from typing import TYPE_CHECKING
 
 from . import __version__
 from .errors import EXIT_FINDINGS, EXIT_INPUT, EXIT_INTERNAL, PullproofError
+from .heap import few_collections
 from .limits import DEFAULT_MAX_FILE_BYTES, DEFAULT_MAX_TOTAL_BYTES, InputPolicy
 from .report.safe_text import for_terminal, json_text, write_json_safely
 
@@ -450,7 +451,7 @@ def main(argv: Sequence[str] | None = None) -> int:
     with contextlib.suppress(AttributeError, ValueError):  # never fail on an odd stdout
         sys.stdout.reconfigure(errors="backslashreplace")  # type: ignore[union-attr]
     try:
-        with _signals_interrupt():
+        with _signals_interrupt(), few_collections():
             return handler(args)
     except PullproofError as exc:
         # Positioned errors already read FILE:LINE:COL: …; others get the program name.
