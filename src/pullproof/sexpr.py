@@ -45,29 +45,39 @@ class Node:
     items: tuple[Node | Atom, ...]
     span: tuple[int, int]
 
+    # The readers call these hundreds of thousands of times on a large board: plain loops
+    # and `type(...) is Node` (items are never subclasses) rather than generators.
     def nodes(self, head: str | None = None) -> Iterator[Node]:
         """Child lists, optionally only those with this head."""
-        for it in self.items:
-            if isinstance(it, Node) and (head is None or it.head == head):
-                yield it
+        if head is None:
+            return iter([it for it in self.items if type(it) is Node])
+        return iter([it for it in self.items if type(it) is Node and it.head == head])
 
     def first(self, head: str) -> Node | None:
         """The first child list with this head, or None."""
-        return next(self.nodes(head), None)
+        for it in self.items:
+            if type(it) is Node and it.head == head:
+                return it
+        return None
 
     def atoms(self) -> tuple[Atom, ...]:
         """The non-list items, in order."""
-        return tuple(it for it in self.items if not isinstance(it, Node))
+        return tuple([it for it in self.items if not isinstance(it, Node)])
 
     def atom(self, index: int = 0, default: Any = None) -> Any:
         """The ``index``-th non-list item, or ``default``."""
-        a = self.atoms()
-        return a[index] if index < len(a) else default
+        for it in self.items:
+            if type(it) is not Node:
+                if not index:
+                    return it
+                index -= 1
+        return default
 
     def has_flag(self, word: str) -> bool:
         """True when a bare ``word`` is an item, or a child ``(word yes)``/``(word)`` says so."""
-        if any(type(it) is Sym and it == word for it in self.items):
-            return True
+        for it in self.items:
+            if type(it) is Sym and it == word:
+                return True
         sub = self.first(word)
         return sub is not None and sub.atom(0, "yes") != "no"
 
@@ -91,13 +101,15 @@ def _unescape(token: str) -> str:
 
 def _number(tok: str) -> int | float | None:
     """The number a bare word spells (by ``int()`` then ``float()``), or None."""
-    try:
-        return int(tok)
-    except ValueError:
+    if "." not in tok:  # int() refuses every word with a point: try float() alone there
         try:
-            return float(tok)
+            return int(tok)
         except ValueError:
-            return None
+            pass
+    try:
+        return float(tok)
+    except ValueError:
+        return None
 
 
 def _as_float(value: int | float) -> float:
@@ -131,22 +143,39 @@ def parse(text: str, name: str, budget: TokenBudget | None = None) -> Node:
     for m in _TOKEN.finditer(text):
         kind = m.lastindex
         count += 1
-        pos = m.start()
         if count > limit:
+            pos = m.start()
             if limit < MAX_TOKENS_PER_FILE:
                 total = budget.total if budget is not None else MAX_TOKENS_TOTAL
                 raise fail(pos, f"the files read so far and this one hold more than "
                                 f"{total:,} lists and words")  # fmt: skip
             raise fail(pos, f"more than {MAX_TOKENS_PER_FILE:,} lists and words in one file")
-        if top is not None:
-            raise fail(pos, "unexpected text after the end of the top-level list")
-        if kind == 1:  # (
+        # the kinds in order of how often they occur: words, then brackets, then strings
+        if kind == 6:  # bare word
+            tok = m.group()
+            c = tok[0]
+            # A backslash escapes the next character in sexpdata's bare words, so `\"` would
+            # start no string there but one here: refuse rather than guess which was meant.
+            if items is None or c in "'`" or "[" in tok or "]" in tok or "\\" in tok:
+                if items is None:
+                    raise fail(m.start(), f"expected '(' but found {excerpt(tok)}")
+                raise fail(m.start(), f"unexpected character in bare word {excerpt(tok)}; quote it")
+            if c in _NUMBERISH or not c.isascii():  # int() reads non-ASCII digits too
+                value = _number(tok)
+                if value is not None:
+                    if not isfinite(value if type(value) is float else _as_float(value)):
+                        raise fail(m.start(), f"number {excerpt(tok)} is not finite")
+                    items.append(value)
+                    continue
+            items.append(Sym_(tok))
+        elif kind == 1:  # (
             if len(open_at) >= MAX_DEPTH:
-                raise fail(pos, f"lists nested deeper than {MAX_DEPTH} levels")
+                raise fail(m.start(), f"lists nested deeper than {MAX_DEPTH} levels")
             items = []
             open_items.append(items)
-            open_at.append(pos)
+            open_at.append(m.start())
         elif kind == 2:  # )
+            pos = m.start()
             if items is None:
                 raise fail(pos, "unexpected ')' with no open '('")
             open_items.pop()
@@ -159,34 +188,24 @@ def parse(text: str, name: str, budget: TokenBudget | None = None) -> Node:
                 items = open_items[-1]
                 items.append(node)
             else:
-                items, top = None, node
-        elif kind == 4:
-            raise fail(pos, "unterminated string: missing closing '\"'")
-        elif kind == 5:
-            raise fail(pos, "NUL character in the text")
-        elif items is None:
-            raise fail(pos, f"expected '(' but found {excerpt(m.group())}")
+                top = node
+                break
         elif kind == 3:  # "string"
-            tok = m.group(3)
+            tok = m.group()
+            if items is None:
+                raise fail(m.start(), f"expected '(' but found {excerpt(tok)}")
             items.append(_unescape(tok) if "\\" in tok else tok[1:-1])
-        else:  # bare word
-            tok = m.group(6)
-            c = tok[0]
-            # A backslash escapes the next character in sexpdata's bare words, so `\"` would
-            # start no string there but one here: refuse rather than guess which was meant.
-            if c in "'`" or "[" in tok or "]" in tok or "\\" in tok:
-                raise fail(pos, f"unexpected character in bare word {excerpt(tok)}; quote it")
-            if c in _NUMBERISH or not c.isascii():  # int() reads non-ASCII digits too
-                value = _number(tok)
-                if value is not None:
-                    if not isfinite(value if type(value) is float else _as_float(value)):
-                        raise fail(pos, f"number {excerpt(tok)} is not finite")
-                    items.append(value)
-                    continue
-            items.append(Sym_(tok))
+        elif kind == 4:
+            raise fail(m.start(), "unterminated string: missing closing '\"'")
+        else:
+            raise fail(m.start(), "NUL character in the text")
+    if top is not None:
+        after = _TOKEN.search(text, top.span[1])
+        if after is not None:
+            raise fail(after.start(), "unexpected text after the end of the top-level list")
     if budget is not None:
         budget.spend(count)
-    if items is not None:
+    if top is None and items is not None:
         raise fail(open_at[-1], "unclosed '(': missing ')' before the end of the file")
     if top is None:
         raise fail(0, "empty file: expected a '(' list")
