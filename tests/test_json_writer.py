@@ -14,7 +14,7 @@ import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 
-from pullproof.report.json_writer import write_json
+from pullproof.report.json_writer import Streamed, write_json
 from pullproof.report.safe_text import json_text
 
 _leaf = st.one_of(
@@ -72,3 +72,17 @@ def test_what_json_refuses_is_refused() -> None:
         _written({"a": object()})
     with pytest.raises(TypeError):
         _written({(1, 2): 3})
+
+
+def test_a_streamed_array_is_written_as_the_list_it_stands_for() -> None:
+    made: list[int] = []
+
+    def items() -> list[dict[str, int]]:
+        made.append(1)
+        return [{"i": i} for i in range(3)]
+
+    doc = {"networks": Streamed(items, 3), "none": Streamed(list, 0)}
+    assert _written(doc) == json.dumps(
+        {"networks": [{"i": 0}, {"i": 1}, {"i": 2}], "none": []}, indent=1, ensure_ascii=False
+    )
+    assert made == [1]

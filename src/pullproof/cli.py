@@ -120,7 +120,7 @@ def _cmd_review(args: argparse.Namespace) -> int:
     if args.json:
         # streamed, not built as one string: with every candidate's operating point a large
         # board's document is tens of megabytes
-        write_json_safely(review_json(result), sys.stdout.write)
+        write_json_safely(review_json(result, streamed=True), sys.stdout.write)
         sys.stdout.write("\n")
     else:
         _out(review_table(result))

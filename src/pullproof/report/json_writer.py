@@ -14,12 +14,21 @@ from __future__ import annotations
 
 import json.encoder
 from collections.abc import Callable, Iterable
+from dataclasses import dataclass
 from typing import Any
 
-__all__ = ["write_json"]
+__all__ = ["Streamed", "write_json"]
 
 _STRING: Callable[[str], str] = json.encoder.encode_basestring  # the C version where built
 _FLUSH_AT = 4096  # pieces held before they are handed on
+
+
+@dataclass(frozen=True)
+class Streamed:
+    """A JSON array whose items are made one at a time, as they are written."""
+
+    items: Callable[[], Iterable[Any]]
+    length: int  # how many ``items`` yields (only whether it is 0 changes the text)
 
 
 def _float(x: float) -> str:
@@ -73,16 +82,18 @@ def write_json(doc: Any, write: Callable[[str], object], indent: int = 1) -> Non
             append(int.__repr__(v))
         elif isinstance(v, float):
             append(_float(v))
-        elif isinstance(v, dict | list | tuple):
+        elif isinstance(v, dict | list | tuple | Streamed):
             is_dict = isinstance(v, dict)
-            if not v:
+            if not (v.length if isinstance(v, Streamed) else v):
                 append("{}" if is_dict else "[]")
                 return
             inner = pad(level + 1)
             sep = "," + inner
             append(("{" if is_dict else "[") + inner)
             first = True
-            entries: Iterable[Any] = v.items() if isinstance(v, dict) else v
+            entries: Iterable[Any] = (
+                v.items() if isinstance(v, dict) else v.items() if isinstance(v, Streamed) else v
+            )
             for entry in entries:
                 if not first:
                     append(sep)

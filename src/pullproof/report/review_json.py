@@ -27,6 +27,7 @@ from ..results import (
     Skipped,
     Term,
 )
+from .json_writer import Streamed
 
 # E-series values recur across networks; the code is the same each time.
 format_rkm = lru_cache(maxsize=4096)(_format_rkm)
@@ -315,8 +316,17 @@ def _changes(c: Changes | None) -> dict[str, Any] | None:
     }
 
 
-def review_json(result: ReviewResult) -> dict[str, Any]:
-    """The review as a JSON-ready dict following schema ``pullproof.review/2``."""
+def review_json(result: ReviewResult, *, streamed: bool = False) -> dict[str, Any]:
+    """The review as a JSON-ready dict following schema ``pullproof.review/2``.
+
+    ``streamed``: the networks are a :class:`Streamed` array, each made as it is written
+    (for :func:`write_json`; a large board's networks are most of the document, and held
+    all at once they were as big again as the review itself)."""
+    networks: list[dict[str, Any]] | Streamed
+    if streamed:
+        networks = Streamed(lambda: map(_network, result.networks), len(result.networks))
+    else:
+        networks = [_network(r) for r in result.networks]
     return {
         "schema": SCHEMA,
         "root": result.root,
@@ -325,7 +335,7 @@ def review_json(result: ReviewResult) -> dict[str, Any]:
         "gate": result.gate.value,
         "assumed": result.assumed,
         "warnings": list(result.warnings),
-        "networks": [_network(r) for r in result.networks],
+        "networks": networks,
         "findings": [_finding(f) for f in result.findings],
         "skipped": [_skipped(s) for s in result.skipped],
         "hazardous": _hazardous(result),
