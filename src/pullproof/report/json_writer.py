@@ -4,10 +4,11 @@ writes it, at the speed of the C encoder for the leaves.
 The standard library's C encoder is used only without ``indent``; with it, every token
 passes through a chain of pure-Python generators, which for a large board's review (tens
 of megabytes) costs more than the review itself. Here the structure is walked by one
-recursive function that appends to a list, and every leaf is encoded by the standard
-library's own C functions (``encode_basestring``, ``float.__repr__``), so the text is the
-same byte for byte — the test suite checks it against ``json.dumps`` on random documents.
-Pieces are handed to ``write`` as the list grows, so the whole text never sits in memory.
+recursive function that joins its children's texts, and every leaf is encoded by the
+standard library's own C functions (``encode_basestring``, ``float.__repr__``), so the
+text is the same byte for byte — the test suite checks it against ``json.dumps`` on random
+documents. The top two levels are handed to ``write`` item by item (a review's networks one
+at a time), so the whole text never sits in memory.
 """
 
 from __future__ import annotations
@@ -20,7 +21,6 @@ from typing import Any
 __all__ = ["Streamed", "write_json"]
 
 _STRING: Callable[[str], str] = json.encoder.encode_basestring  # the C version where built
-_FLUSH_AT = 4096  # pieces held before they are handed on
 
 
 @dataclass(frozen=True)
@@ -31,14 +31,12 @@ class Streamed:
     length: int  # how many ``items`` yields (only whether it is 0 changes the text)
 
 
+_SPECIAL = {"nan": "NaN", "inf": "Infinity", "-inf": "-Infinity"}  # as json writes them
+
+
 def _float(x: float) -> str:
-    if x != x:
-        return "NaN"
-    if x == float("inf"):
-        return "Infinity"
-    if x == -float("inf"):
-        return "-Infinity"
-    return float.__repr__(x)
+    r = float.__repr__(x)
+    return _SPECIAL.get(r, r)
 
 
 def _key(k: Any) -> str:
@@ -58,58 +56,100 @@ def _key(k: Any) -> str:
     raise TypeError(f"keys must be str, int, float, bool or None, not {type(k).__name__}")
 
 
-def write_json(doc: Any, write: Callable[[str], object], indent: int = 1) -> None:
-    """Write ``doc`` as ``json.dumps(doc, indent=indent, ensure_ascii=False)`` would."""
-    out: list[str] = []
-    append = out.append
-    pads = ["\n"]  # pads[level]: newline and the indent of that level
+class _Encoder:
+    """The text of one value at one depth, built by joining its children's texts."""
 
-    def pad(level: int) -> str:
+    def __init__(self, indent: int) -> None:
+        self.indent = indent
+        self.pads = ["\n"]  # pads[level]: a newline and the indent of that level
+
+    def pad(self, level: int) -> str:
+        pads = self.pads
         while len(pads) <= level:
-            pads.append("\n" + " " * (indent * len(pads)))
+            pads.append("\n" + " " * (self.indent * len(pads)))
         return pads[level]
 
-    def value(v: Any, level: int) -> None:
+    def text(self, v: Any, level: int) -> str:
+        t = type(v)  # exact types first: they are nearly all of a document
+        if t is str:
+            return _STRING(v)
+        if t is float:
+            r = float.__repr__(v)
+            return _SPECIAL.get(r, r)
+        if t is int:
+            return int.__repr__(v)
+        if v is None:
+            return "null"
+        if v is True:
+            return "true"
+        if v is False:
+            return "false"
         if isinstance(v, str):
-            append(_STRING(v))
-        elif v is None:
-            append("null")
-        elif v is True:
-            append("true")
-        elif v is False:
-            append("false")
-        elif isinstance(v, int):
-            append(int.__repr__(v))
-        elif isinstance(v, float):
-            append(_float(v))
-        elif isinstance(v, dict | list | tuple | Streamed):
-            is_dict = isinstance(v, dict)
-            if not (v.length if isinstance(v, Streamed) else v):
-                append("{}" if is_dict else "[]")
-                return
-            inner = pad(level + 1)
-            sep = "," + inner
-            append(("{" if is_dict else "[") + inner)
-            first = True
-            entries: Iterable[Any] = (
-                v.items() if isinstance(v, dict) else v.items() if isinstance(v, Streamed) else v
+            return _STRING(v)
+        if isinstance(v, int):
+            return int.__repr__(v)
+        if isinstance(v, float):
+            return _float(v)
+        if isinstance(v, dict):
+            if not v:
+                return "{}"
+            inner = self.pad(level + 1)
+            text = self.text
+            return (
+                "{"
+                + inner
+                + ("," + inner).join(
+                    [
+                        (_STRING(k) if type(k) is str else _key(k)) + ": " + text(x, level + 1)
+                        for k, x in v.items()
+                    ]
+                )
+                + self.pad(level)
+                + "}"
             )
-            for entry in entries:
-                if not first:
-                    append(sep)
-                first = False
-                if is_dict:
-                    append(_key(entry[0]) + ": ")
-                    value(entry[1], level + 1)
-                else:
-                    value(entry, level + 1)
-                    if len(out) > _FLUSH_AT:  # hand on a long list as it goes
-                        write("".join(out))
-                        out.clear()
-            append(pad(level) + ("}" if is_dict else "]"))
-        else:
-            raise TypeError(f"Object of type {type(v).__name__} is not JSON serializable")
+        if isinstance(v, Streamed):
+            v = list(v.items())
+        if isinstance(v, list | tuple):
+            if not v:
+                return "[]"
+            inner = self.pad(level + 1)
+            text = self.text
+            return (
+                "["
+                + inner
+                + ("," + inner).join([text(x, level + 1) for x in v])
+                + self.pad(level)
+                + "]"
+            )
+        raise TypeError(f"Object of type {type(v).__name__} is not JSON serializable")
 
-    value(doc, 0)
-    if out:
-        write("".join(out))
+
+_STREAM_DEPTH = 2  # containers above this depth are handed on item by item
+
+
+def write_json(doc: Any, write: Callable[[str], object], indent: int = 1) -> None:
+    """Write ``doc`` as ``json.dumps(doc, indent=indent, ensure_ascii=False)`` would."""
+    enc = _Encoder(indent)
+
+    def stream(v: Any, level: int) -> None:
+        is_dict = isinstance(v, dict)
+        if level >= _STREAM_DEPTH or not isinstance(v, dict | list | tuple | Streamed):
+            write(enc.text(v, level))
+            return
+        if not (v.length if isinstance(v, Streamed) else v):
+            write("{}" if is_dict else "[]")
+            return
+        inner = enc.pad(level + 1)
+        write(("{" if is_dict else "[") + inner)
+        entries: Iterable[Any] = v.items() if isinstance(v, dict | Streamed) else v
+        for i, entry in enumerate(entries):
+            if i:
+                write("," + inner)
+            if is_dict:
+                write(_key(entry[0]) + ": ")
+                stream(entry[1], level + 1)
+            else:
+                stream(entry, level + 1)
+        write(enc.pad(level) + ("}" if is_dict else "]"))
+
+    stream(doc, 0)
