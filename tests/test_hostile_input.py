@@ -19,7 +19,14 @@ import pytest
 
 from conftest import FIXTURES
 from hostile import digests, run
-from pullproof.limits import MAX_BUS_MEMBERS, MAX_COORDINATE_MM, TokenBudget
+from pullproof.limits import (
+    MAX_BUS_MEMBERS,
+    MAX_COORDINATE_MM,
+    MAX_TOKENS_PER_FILE,
+    MAX_TOKENS_TOTAL,
+    InputPolicy,
+    TokenBudget,
+)
 from pullproof.nets import build_circuit
 
 DEMO = FIXTURES / "demo"  # the `project` fixture (conftest.py) is a copy of it
@@ -319,9 +326,7 @@ def test_lists_and_words_are_counted_over_all_files(
     project: Path, monkeypatch: pytest.MonkeyPatch
 ) -> None:
     """A smaller budget for the whole review stands in for six million lists and words."""
-    from pullproof.schematic import hierarchy
-
-    monkeypatch.setattr(hierarchy, "TokenBudget", lambda: TokenBudget(total=9000))
+    monkeypatch.setattr(InputPolicy, "tokens", lambda self: TokenBudget(total=9000))
     before = digests(project)
     code, out, err = run("nets", ROOT)
     assert (code, out) == (2, "")
@@ -330,6 +335,17 @@ def test_lists_and_words_are_counted_over_all_files(
         "and words\n"
     )
     assert digests(project) == before
+
+
+def test_token_limits_grow_with_the_size_limits_and_never_shrink() -> None:
+    # A larger --max-file-size admits a larger board of real text (about 0.2 lists and words
+    # per byte), so the token limits follow it in proportion; below the defaults they stay.
+    default = InputPolicy().tokens()
+    assert (default.per_file, default.total) == (MAX_TOKENS_PER_FILE, MAX_TOKENS_TOTAL)
+    big = InputPolicy(max_file_bytes=100_000_000, max_total_bytes=250_000_000).tokens()
+    assert (big.per_file, big.total) == (10 * MAX_TOKENS_PER_FILE, 10 * MAX_TOKENS_TOTAL)
+    small = InputPolicy(max_file_bytes=1_000, max_total_bytes=1_000).tokens()
+    assert (small.per_file, small.total) == (MAX_TOKENS_PER_FILE, MAX_TOKENS_TOTAL)
 
 
 def test_a_bad_size_option_is_a_usage_error(project: Path) -> None:

@@ -55,6 +55,10 @@ MAX_TOKENS_PER_FILE = 3_000_000
 # … and in all files of one review: a project of real text at the total size limit holds
 # about 5 million.
 MAX_TOKENS_TOTAL = 6_000_000
+# Raising a size limit raises these in proportion (the defaults are these ratios times the
+# default sizes), so a larger limit admits a larger board of real text, not a denser file.
+TOKENS_PER_FILE_BYTE = MAX_TOKENS_PER_FILE / DEFAULT_MAX_FILE_BYTES
+TOKENS_PER_TOTAL_BYTE = MAX_TOKENS_TOTAL / DEFAULT_MAX_TOTAL_BYTES
 
 
 @dataclass(frozen=True)
@@ -73,17 +77,25 @@ class InputPolicy:
         if self.max_file_bytes <= 0 or self.max_total_bytes <= 0:
             raise ValueError("size limits must be positive")
 
+    def tokens(self) -> TokenBudget:
+        """The lists and words a review under this policy may read (at least the defaults)."""
+        return TokenBudget(
+            max(MAX_TOKENS_TOTAL, int(TOKENS_PER_TOTAL_BYTE * self.max_total_bytes)),
+            max(MAX_TOKENS_PER_FILE, int(TOKENS_PER_FILE_BYTE * self.max_file_bytes)),
+        )
+
 
 class TokenBudget:
     """The lists and words one review may still read: per file, and across all its files."""
 
-    def __init__(self, total: int = MAX_TOKENS_TOTAL) -> None:
+    def __init__(self, total: int = MAX_TOKENS_TOTAL, per_file: int = MAX_TOKENS_PER_FILE) -> None:
         self.total = total
+        self.per_file = per_file
         self.left = total
 
     def for_file(self) -> int:
         """How many the next file may hold."""
-        return min(MAX_TOKENS_PER_FILE, self.left)
+        return min(self.per_file, self.left)
 
     def spend(self, count: int) -> None:
         self.left -= count

@@ -133,7 +133,8 @@ def parse(text: str, name: str, budget: TokenBudget | None = None) -> Node:
     def fail(offset: int, message: str) -> SchematicSyntaxError:
         return SchematicSyntaxError(message, src.locate(offset))
 
-    limit = MAX_TOKENS_PER_FILE if budget is None else budget.for_file()
+    per_file = MAX_TOKENS_PER_FILE if budget is None else budget.per_file
+    limit = per_file if budget is None else budget.for_file()
     open_items: list[list[Node | Atom]] = []  # the items of each open list, outermost first
     open_at: list[int] = []  # the offset of each open list's "("
     items: list[Node | Atom] | None = None  # the innermost open list's items
@@ -145,11 +146,11 @@ def parse(text: str, name: str, budget: TokenBudget | None = None) -> Node:
         count += 1
         if count > limit:
             pos = m.start()
-            if limit < MAX_TOKENS_PER_FILE:
+            if limit < per_file:
                 total = budget.total if budget is not None else MAX_TOKENS_TOTAL
                 raise fail(pos, f"the files read so far and this one hold more than "
                                 f"{total:,} lists and words")  # fmt: skip
-            raise fail(pos, f"more than {MAX_TOKENS_PER_FILE:,} lists and words in one file")
+            raise fail(pos, f"more than {per_file:,} lists and words in one file")
         # the kinds in order of how often they occur: words, then brackets, then strings
         if kind == 6:  # bare word
             tok = m.group()

@@ -19,7 +19,6 @@ from ..limits import (
     MAX_INSTANCES,
     MAX_SHEET_DEPTH,
     InputPolicy,
-    TokenBudget,
 )
 from ..textfile import Unreadable
 from .model import SchematicFile, SheetBlock
@@ -77,7 +76,7 @@ class _Loader:
         self.display_root = os.fspath(root)
         self.root_path = Path(root)
         self.total = 0
-        self.tokens = TokenBudget()
+        self.tokens = policy.tokens()
         self.models: dict[str, SchematicFile] = {}
         self.texts: dict[str, SourceText] = {}
         self.absolute: dict[str, str] = {}
