@@ -33,6 +33,7 @@ A name already taken by another net gets ``#2``, ``#3`` … appended.
 
 from __future__ import annotations
 
+import functools
 import os
 import re
 from collections import defaultdict
@@ -52,13 +53,16 @@ _DIGITS = re.compile(r"(\d+)")
 _PROPS_NOT_FIELDS = frozenset({"Reference", "Value"})
 
 
+@functools.lru_cache(maxsize=65536)  # pin numbers and references recur in every sort
 def natural_key(text: str) -> tuple[tuple[int, int | str], ...]:
     """Sort key that orders R2 before R10 and pin 2 before pin 10."""
     # Odd items of the split are the digit runs; a run too long for int() sorts as text.
     return tuple(
-        (0, int(chunk)) if i % 2 and len(chunk) <= 100 else (1, chunk)
-        for i, chunk in enumerate(_DIGITS.split(text))
-        if chunk
+        [
+            (0, int(chunk)) if i % 2 and len(chunk) <= 100 else (1, chunk)
+            for i, chunk in enumerate(_DIGITS.split(text))
+            if chunk
+        ]
     )
 
 
