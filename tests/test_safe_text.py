@@ -131,3 +131,23 @@ def test_a_file_name_with_controls_is_escaped_in_the_error(tmp_path: Path) -> No
         f"pullproof: cannot read {tmp_path}/evil\\x1b]0;title\\x07.kicad_sch: "
         "No such file or directory\n"
     )
+
+
+def test_the_json_prefilter_lets_every_unsafe_character_through() -> None:
+    # The prefilter decides which characters reach the category test; it must hold every
+    # code point of the unsafe categories per the running Python's Unicode tables (the
+    # Unicode Character Database, a general-purpose reference), in every plane.
+    import sys
+
+    from pullproof.report.safe_text import _MAYBE_UNSAFE_JSON, UNSAFE_CATEGORIES
+
+    missed = [
+        hex(cp)
+        for cp in range(sys.maxunicode + 1)
+        if cp != 0x0A
+        and unicodedata.category(chr(cp)) in UNSAFE_CATEGORIES
+        and not _MAYBE_UNSAFE_JSON.match(chr(cp))
+    ]
+    assert missed == []
+    for ch in "Ωµ±°–×≤≥é":  # common in reviews: never sent to the callback
+        assert not _MAYBE_UNSAFE_JSON.match(ch)

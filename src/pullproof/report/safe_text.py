@@ -70,13 +70,21 @@ def _json_escape(m: re.Match[str]) -> str:
     return _json_char(m.group())
 
 
-# json.dumps escapes C0 controls inside strings, so a raw newline is the layout's own
-_NOT_PLAIN_JSON = re.compile(r"[^\x20-\x7e\n]")
+# The characters that may be unsafe, as one class the regex engine tests without calling back:
+# every code point of the unsafe categories in the Basic Multilingual Plane (Unicode 14/15, as
+# a test checks against the running Python's tables) and everything beyond it. Only these
+# reach _json_escape, which decides by category; "Ω", "µ", "±", "°" never do. A raw newline
+# is the layout's own: json.dumps escapes C0 controls inside strings.
+_MAYBE_UNSAFE_JSON = re.compile(
+    "[\x00-\x09\x0b-\x1f\x7f-\x9f\xad\u0600-\u0605\u061c\u06dd\u070f\u0890\u0891\u08e2"
+    "\u180e\u200b-\u200f\u2028-\u202e\u2060-\u206f\ud800-\udfff\ufeff\ufff9-\ufffb"
+    "\U00010000-\U0010ffff]"
+)
 
 
 def write_json_safely(doc: Any, write: Callable[[str], object]) -> None:
     """Write ``doc`` as :func:`json_text` does, piece by piece, for a large document."""
-    write_json(doc, lambda piece: write(_NOT_PLAIN_JSON.sub(_json_escape, piece)))
+    write_json(doc, lambda piece: write(_MAYBE_UNSAFE_JSON.sub(_json_escape, piece)))
 
 
 def json_text(doc: Any) -> str:
