@@ -62,6 +62,7 @@ class _Encoder:
     def __init__(self, indent: int) -> None:
         self.indent = indent
         self.pads = ["\n"]  # pads[level]: a newline and the indent of that level
+        self.keys: dict[str, str] = {}  # each key's text with its ": "
 
     def pad(self, level: int) -> str:
         pads = self.pads
@@ -94,19 +95,25 @@ class _Encoder:
             if not v:
                 return "{}"
             inner = self.pad(level + 1)
-            text = self.text
-            return (
-                "{"
-                + inner
-                + ("," + inner).join(
-                    [
-                        (_STRING(k) if type(k) is str else _key(k)) + ": " + text(x, level + 1)
-                        for k, x in v.items()
-                    ]
-                )
-                + self.pad(level)
-                + "}"
-            )
+            text, keys, deeper = self.text, self.keys, level + 1
+            parts: list[str] = []
+            add = parts.append
+            for k, x in v.items():
+                if type(k) is str:
+                    head = keys.get(k)
+                    if head is None:  # keys recur in every network: each made once
+                        head = keys[k] = _STRING(k) + ": "
+                else:
+                    head = _key(k) + ": "
+                tx = type(x)  # leaves inline: a call per leaf was most of the cost
+                if tx is str:
+                    add(head + _STRING(x))
+                elif tx is float:
+                    r = float.__repr__(x)
+                    add(head + (_SPECIAL[r] if r[-1] > "9" else r))  # nan, inf end in a letter
+                else:
+                    add(head + text(x, deeper))
+            return "{" + inner + ("," + inner).join(parts) + self.pad(level) + "}"
         if isinstance(v, Streamed):
             v = list(v.items())
         if isinstance(v, list | tuple):
