@@ -7,6 +7,7 @@ A non-breaking space joins number and unit so a printed table never splits them.
 
 from __future__ import annotations
 
+from functools import lru_cache
 from typing import Any
 
 from ..provenance import Sourced
@@ -54,6 +55,9 @@ def engineering(value: float, unit: str, sig: int = 3) -> str:
     return format_si(value, unit, sig=sig, sep=NBSP)
 
 
+# Boards repeat their values (10 kΩ, 3.3 V, the E-series): the two formatters the tables call
+# most are pure functions of a float, so each distinct value is formatted once per process.
+@lru_cache(maxsize=16384, typed=True)
 def format_ohms(ohms: float | None) -> str:
     """A resistance in ohms as "4.7 kΩ"; None (no limit known) as "—"."""
     return "—" if ohms is None else engineering(ohms, "Ω")
@@ -150,6 +154,7 @@ def _format_qty(value: Qty) -> str:
 _SYMBOL = {"A": "A", "W": "W", "V": "V", "s": "s", "F": "F", "ohm": "Ω"}
 
 
+@lru_cache(maxsize=16384, typed=True)
 def format_value(x: float, unit: str) -> str:
     """A float in a base unit ("A", "W", "V", "s", "F", "ohm") as :func:`format_quantity`
     prints the same quantity, without building one (the operating-point tables hold many)."""
