@@ -15,7 +15,7 @@ import hashlib
 import os
 import re
 from collections.abc import Iterable
-from dataclasses import dataclass, replace
+from dataclasses import dataclass
 from functools import lru_cache
 from importlib import resources
 from pathlib import Path
@@ -26,7 +26,6 @@ from markupsafe import Markup
 
 from .. import __version__
 from ..errors import PullproofError
-from ..eseries import format_rkm as _format_rkm
 from ..hazard import safety_caution
 from ..network import Missing, PullNetwork
 from ..provenance import Sourced
@@ -44,6 +43,7 @@ from ..results import (
     Verdict,
 )
 from ..textfile import write_report
+from . import note_html
 from .chart import chart_text, window_chart
 from .format import (
     format_margin,
@@ -53,9 +53,7 @@ from .format import (
     format_value,
     format_window,
 )
-
-# E-series values recur across networks; the code is the same each time.
-format_rkm = lru_cache(maxsize=4096)(_format_rkm)
+from .note_html import format_rkm
 
 __all__ = [
     "FileDigest",
@@ -146,19 +144,6 @@ class CircuitRow:
 
 
 @dataclass(frozen=True)
-class PointRow:
-    """One row of the operating-point table: a resistance and its figures over its band."""
-
-    label: str  # "fitted R10", "E24 pick", or "" for another candidate
-    value: str  # "10 kΩ"
-    rkm: str  # "10K"
-    band: str  # "9.43 kΩ … 10.6 kΩ"
-    cells: tuple[str, ...]  # one per column, "—" where the figure does not apply
-    fitted: bool
-    pick: bool
-
-
-@dataclass(frozen=True)
 class FigureView:
     """A column of the operating-point table: what it is, and its formula at the fitted value."""
 
@@ -176,7 +161,9 @@ class OperatingView:
     """The operating-point table of one network."""
 
     columns: tuple[FigureView, ...]
-    rows: tuple[PointRow, ...]
+    # the table's rows as HTML: the fitted value ("fitted R10"), then every candidate, the
+    # pick ("E24 pick") marked; 46 rows of 7 cells per network are too many for the template
+    rows: Markup
 
 
 @dataclass(frozen=True)
@@ -434,24 +421,20 @@ def _operating(nr: NetworkResult, reg: _Registry) -> OperatingView | None:
                        tuple(reg.ref(t.symbol, t.value) for t in f.terms), f.note, f.missing)
         )  # fmt: skip
     refs = "/".join(nr.network.resistor.refs)
-    fitted = _point_row(op.values(), f"fitted {refs}", fitted=True, pick=False)
-    rows = [replace(fitted, cells=tuple(_cell(f) for f in op.figures))]  # "unknown" vs "—"
+    fit = op.values()
+    cells = [note_html.esc(_cell(f)) for f in op.figures]  # "unknown" vs "—"
+    rows = [
+        note_html.point_row(f"fitted {refs}", fit.ohms, fit.band, cells, fitted=True, pick=False)
+    ]
     rec = nr.recommendation
     if rec is not None:
+        cell, units = note_html.cell, PointValues.UNITS
         for p in rec.points:
             pick = rec.pick is not None and p.ohms == rec.pick
             label = f"{rec.series} pick" if pick else ""
-            rows.append(_point_row(p, label, fitted=False, pick=pick))
-    return OperatingView(tuple(columns), tuple(rows))
-
-
-def _point_row(p: PointValues, label: str, *, fitted: bool, pick: bool) -> PointRow:
-    cells = tuple(
-        "—" if x is None else format_value(x, unit)
-        for x, unit in zip(p.figures, PointValues.UNITS, strict=True)
-    )
-    band = f"{format_ohms(p.band[0])} … {format_ohms(p.band[1])}"
-    return PointRow(label, format_ohms(p.ohms), format_rkm(p.ohms), band, cells, fitted, pick)
+            cells = [cell(x, u) for x, u in zip(p.figures, units, strict=True)]
+            rows.append(note_html.point_row(label, p.ohms, p.band, cells, fitted=False, pick=pick))
+    return OperatingView(tuple(columns), Markup("".join(rows)))
 
 
 def _network_view(nr: NetworkResult, anchor: str) -> NetworkView:
@@ -641,6 +624,13 @@ def note_environment(directory: Path | None = None) -> jinja2.Environment:
         margin=format_margin,
         rkm=format_rkm,
         capitalize_first=_capitalize_first,
+    )
+    # Python-built fragments of the repeated rows (same bytes as the loops they replace)
+    env.globals.update(
+        candidate_list=note_html.candidates,
+        term_list=note_html.terms,
+        term_items=note_html.term_items,
+        provenance_list=note_html.provenance,
     )
     return env
 
