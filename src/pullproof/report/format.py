@@ -138,14 +138,18 @@ _QTY_SYMBOL = {"ohm": "Ω", "V": "V", "A": "A", "W": "W", "F": "F", "s": "s"}
 
 def _format_qty(value: Qty) -> str:
     """:func:`format_quantity` of a natively held quantity, without pint (same text)."""
-    unit = value.unit
+    return _qty_text(value.unit, float(value.magnitude))
+
+
+@lru_cache(maxsize=16384)
+def _qty_text(unit: str, x: float) -> str:
+    # a pure function of the unit and the float magnitude: rails and part data recur
     if unit in ("degC", "K"):
-        return f"{_digits(value.m_as('degC'))}{NBSP}°C"
+        return f"{_digits(Qty(x, unit).m_as('degC'))}{NBSP}°C"
     if unit == "":
-        return format_percent(float(value.magnitude))
+        return format_percent(x)
     if unit == "1/K":
-        return f"{_digits(float(value.magnitude) * 1e6)}{NBSP}ppm/K"
-    x = float(value.magnitude)
+        return f"{_digits(x * 1e6)}{NBSP}ppm/K"
     if unit == "V" and 0.1 <= abs(x) < 1000:  # designers write 0.8 V and 230 V, not 800 mV
         return f"{_digits(x, 4)}{NBSP}V"
     return engineering(x, _QTY_SYMBOL[unit])
