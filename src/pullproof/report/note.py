@@ -193,39 +193,34 @@ class _Registry:
     """Numbers each distinct (symbol, value, source) of one network once."""
 
     def __init__(self) -> None:
-        self._index: dict[tuple[str, str, str, str, str], ProvEntry] = {}
-        # Formatting a quantity is slow and the same Sourced objects recur across limits,
-        # checks and the operating point: format each once (keyed by identity; the result
-        # holds them alive while the registry is in use).
-        self._texts: dict[int, tuple[Sourced, str]] = {}
+        self._index: dict[tuple[str, str, str, str, str], TermRef] = {}
+        self._entries: list[ProvEntry] = []
+        # The same Sourced objects recur across limits, checks and the operating point:
+        # read and format each once (keyed by identity; the entry holds it alive while the
+        # registry is in use).
+        self._seen: dict[int, tuple[Sourced, str, str, str, str, str]] = {}
 
-    def _text(self, value: Sourced) -> str:
-        known = self._texts.get(id(value))
+    def _facts(self, value: Sourced) -> tuple[Sourced, str, str, str, str, str]:
+        known = self._seen.get(id(value))
         if known is None or known[0] is not value:
-            known = (value, format_sourced(value))
-            self._texts[id(value)] = known
-        return known[1]
+            src = value.source
+            text = format_sourced(value)
+            known = (value, text, src.where, src.status.value, src.reason, src.origin.value)
+            self._seen[id(value)] = known
+        return known
 
     def ref(self, symbol: str, value: Sourced) -> TermRef:
-        text = self._text(value)
-        src = value.source
-        key = (symbol, text, src.where, src.status.value, src.reason)
-        entry = self._index.get(key)
-        if entry is None:
-            entry = ProvEntry(
-                len(self._index) + 1,
-                symbol,
-                text,
-                src.where,
-                src.origin.value,
-                src.status.value,
-                src.reason,
-            )
-            self._index[key] = entry
-        return TermRef(symbol, text, entry.number)
+        _, text, where, status, reason, origin = self._facts(value)
+        key = (symbol, text, where, status, reason)
+        term = self._index.get(key)
+        if term is None:
+            number = len(self._entries) + 1
+            self._entries.append(ProvEntry(number, symbol, text, where, origin, status, reason))
+            term = self._index[key] = TermRef(symbol, text, number)
+        return term
 
     def entries(self) -> tuple[ProvEntry, ...]:
-        return tuple(self._index.values())
+        return tuple(self._entries)
 
 
 def _slug(text: str, prefix: str, taken: set[str]) -> str:
