@@ -84,7 +84,7 @@ def test_point_row_matches_the_template_loop() -> None:
     figures = (5.25 / 4653.0, 4.75 / 4747.0, 5.25**2 / 4653.0, 4.74, None)
     units = ("A", "A", "W", "V", "s")
     raw = ["—" if x is None else format_value(x, u) for x, u in zip(figures, units, strict=True)]
-    cells = [note_html.cell(x, u) for x, u in zip(figures, units, strict=True)]
+    cells = "".join(map(note_html.cell, figures, units))
     rows = [
         dict(label=HOSTILE, ohms=4700.0, band=(4653.0, 4747.0), fitted=True, pick=False),
         dict(label="E24 pick", ohms=6800.0, band=(6732.0, 6868.0), fitted=False, pick=True),

@@ -43,7 +43,7 @@ from ..results import (
     Verdict,
 )
 from ..textfile import write_report
-from . import note_html
+from . import note_html, note_rows
 from .chart import chart_text, window_chart
 from .format import (
     format_margin,
@@ -417,18 +417,18 @@ def _operating(nr: NetworkResult, reg: _Registry) -> OperatingView | None:
         )  # fmt: skip
     refs = "/".join(nr.network.resistor.refs)
     fit = op.values()
-    cells = [note_html.esc(_cell(f)) for f in op.figures]  # "unknown" vs "—"
-    rows = [
-        note_html.point_row(f"fitted {refs}", fit.ohms, fit.band, cells, fitted=True, pick=False)
-    ]
+    # the fitted row's cells come from its figures: "unknown" where a value is missing
+    cells = "".join([f'<td class="num">{note_html.esc(_cell(f))}</td>' for f in op.figures])
+    row = note_html.point_row
+    rows = [row(f"fitted {refs}", fit.ohms, fit.band, cells, fitted=True, pick=False)]
     rec = nr.recommendation
     if rec is not None:
         cell, units = note_html.cell, PointValues.UNITS
         for p in rec.points:
             pick = rec.pick is not None and p.ohms == rec.pick
             label = f"{rec.series} pick" if pick else ""
-            cells = [cell(x, u) for x, u in zip(p.figures, units, strict=True)]
-            rows.append(note_html.point_row(label, p.ohms, p.band, cells, fitted=False, pick=pick))
+            cells = "".join(map(cell, p.figures, units))
+            rows.append(row(label, p.ohms, p.band, cells, fitted=False, pick=pick))
     return OperatingView(tuple(columns), Markup("".join(rows)))
 
 
@@ -626,6 +626,11 @@ def note_environment(directory: Path | None = None) -> jinja2.Environment:
         term_list=note_html.terms,
         term_items=note_html.term_items,
         provenance_list=note_html.provenance,
+        limit_rows=note_rows.limit_rows,
+        figure_list=note_rows.figure_list,
+        missing_list=note_rows.missing_list,
+        assumption_items=note_rows.assumption_items,
+        network_links=note_rows.network_links,
     )
     return env
 

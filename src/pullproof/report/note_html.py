@@ -44,29 +44,33 @@ def esc(text: str) -> str:
 
 @lru_cache(maxsize=16384, typed=True)
 def cell(x: float | None, unit: str) -> str:
-    """One operating-point figure, escaped; "—" where it does not apply."""
-    return "—" if x is None else esc(format_value(x, unit))
+    """One operating-point figure as its table cell; "—" where it does not apply."""
+    text = "—" if x is None else esc(format_value(x, unit))
+    return f'<td class="num">{text}</td>'
+
+
+@lru_cache(maxsize=16384, typed=True)
+def _ohms(x: float) -> str:
+    return esc(format_ohms(x))
+
+
+@lru_cache(maxsize=16384, typed=True)
+def _value(x: float) -> str:
+    return f"{_ohms(x)} <code>{esc(format_rkm(x))}</code>"
 
 
 def point_row(
-    label: str, ohms: float, band: tuple[float, float], cells: Iterable[str], *,
-    fitted: bool, pick: bool,
-) -> str:  # fmt: skip
+    label: str, ohms: float, band: tuple[float, float], cells: str, *, fitted: bool, pick: bool
+) -> str:
     """One ``<tr>`` of the operating-point table, led by the newline and indentation the
-    template loop wrote; ``cells`` are already escaped."""
+    template loop wrote; ``cells`` are the figures' :func:`cell` texts, joined."""
     klass = ("op-row fitted" if fitted else "op-row") + (" pick" if pick else "")
     mark = '<span aria-hidden="true">▲ </span>' if pick else ""
     note = f'<div class="small muted">{esc(label)}</div>' if label else ""
-    figures = "".join([f'<td class="num">{c}</td>' for c in cells])
-    value = f"{esc(format_ohms(ohms))} <code>{esc(format_rkm(ohms))}</code>"
     return (
-        f'\n      <tr class="{klass}"><td>{mark}{value}{note}</td>'
-        f'<td class="small">{_band(band)}</td>{figures}</tr>'
+        f'\n      <tr class="{klass}"><td>{mark}{_value(ohms)}{note}</td>'
+        f'<td class="small">{_ohms(band[0])} … {_ohms(band[1])}</td>{cells}</tr>'
     )
-
-
-def _band(band: tuple[float, float]) -> str:
-    return f"{esc(format_ohms(band[0]))} … {esc(format_ohms(band[1]))}"
 
 
 def candidates(values: Sequence[float]) -> Markup:
