@@ -13,6 +13,7 @@ from markupsafe import Markup
 from pullproof.report import note_html
 from pullproof.report.format import format_ohms, format_value
 from pullproof.report.note import ProvEntry, TermRef
+from pullproof.results import PointValues
 
 ENV = jinja2.Environment(autoescape=True, trim_blocks=True, lstrip_blocks=True)
 ENV.filters.update(ohms=format_ohms, rkm=note_html.format_rkm)
@@ -68,18 +69,21 @@ def test_provenance_matches_the_template_loop() -> None:
         assert got == loop.render(ps=ps, a="net-c")
 
 
+LOOP = ENV.from_string(
+    "<tbody>\n{% for row in rows %}\n"
+    "      <tr class=\"op-row{{ ' fitted' if row.fitted else '' }}"
+    "{{ ' pick' if row.pick else '' }}\"><td>{% if row.pick %}"
+    '<span aria-hidden="true">▲ </span>{% endif %}{{ row.ohms | ohms }} '
+    "<code>{{ row.ohms | rkm }}</code>{% if row.label %}"
+    '<div class="small muted">{{ row.label }}</div>{% endif %}</td>'
+    '<td class="small">{{ row.band[0] | ohms }} … {{ row.band[1] | ohms }}</td>'
+    '{% for c in row.cells %}<td class="num">{{ c }}</td>{% endfor %}</tr>\n'
+    "{% endfor %}\n    </tbody>"
+)
+PLACED = ENV.from_string("<tbody>\n    {{- html }}\n    </tbody>")
+
+
 def test_point_row_matches_the_template_loop() -> None:
-    loop = ENV.from_string(
-        "<tbody>\n{% for row in rows %}\n"
-        "      <tr class=\"op-row{{ ' fitted' if row.fitted else '' }}"
-        "{{ ' pick' if row.pick else '' }}\"><td>{% if row.pick %}"
-        '<span aria-hidden="true">▲ </span>{% endif %}{{ row.ohms | ohms }} '
-        "<code>{{ row.ohms | rkm }}</code>{% if row.label %}"
-        '<div class="small muted">{{ row.label }}</div>{% endif %}</td>'
-        '<td class="small">{{ row.band[0] | ohms }} … {{ row.band[1] | ohms }}</td>'
-        '{% for c in row.cells %}<td class="num">{{ c }}</td>{% endfor %}</tr>\n'
-        "{% endfor %}\n    </tbody>"
-    )
     # 4.7 kΩ ±1 %: its band, Ohm's law at 5.25 V; the idle level is a bare volt figure
     figures = (5.25 / 4653.0, 4.75 / 4747.0, 5.25**2 / 4653.0, 4.74, None)
     units = ("A", "A", "W", "V", "s")
@@ -96,7 +100,26 @@ def test_point_row_matches_the_template_loop() -> None:
         )
         for r in rows
     )
-    placed = ENV.from_string("<tbody>\n    {{- html }}\n    </tbody>")
     for r in rows:
         r["cells"] = raw  # the template escaped the plain texts itself
-    assert placed.render(html=Markup(html)) == loop.render(rows=rows)
+    assert PLACED.render(html=Markup(html)) == LOOP.render(rows=rows)
+
+
+def test_candidate_rows_match_the_template_loop() -> None:
+    # E24 values around 6.8 kΩ (IEC 60063) at ±1 %, Ohm's law at 5.25 V; one unknown figure
+    points = [
+        PointValues(r, (r * 0.99, r * 1.01), 5.25 / r, 4.75 / r, None, 4.74, 1e-7)
+        for r in (5600.0, 6200.0, 6800.0, 7500.0)
+    ]
+    for pick in (6800.0, None, 1.0):
+        html = note_html.candidate_rows(points, pick, "E24")
+        rows = [
+            dict(
+                label="E24 pick" if p.ohms == pick else "", ohms=p.ohms, band=p.band,
+                cells=["—" if x is None else format_value(x, u)
+                       for x, u in zip(p.figures, PointValues.UNITS, strict=True)],
+                fitted=False, pick=p.ohms == pick,
+            )
+            for p in points
+        ]  # fmt: skip
+        assert PLACED.render(html=Markup(html)) == LOOP.render(rows=rows)

@@ -309,6 +309,7 @@ def _tick(d0: int, d1: int, ohms: float) -> str:
     )
 
 
+@lru_cache(maxsize=64)
 def _legend(series: str) -> str:
     y = _H - 14
     items = [
@@ -329,12 +330,13 @@ def _legend(series: str) -> str:
     return "".join(items)
 
 
-def window_chart(result: NetworkResult) -> str:
+def window_chart(result: NetworkResult, text: str | None = None) -> str:
     """Draw ``result``'s window, limits, fitted band and recommendation as an inline SVG.
 
     The element ids are derived from the net name, so several charts can share
     one HTML page; the returned text is safe to insert unescaped (every label
-    from the schematic is escaped here).
+    from the schematic is escaped here). ``text`` is :func:`chart_text` of
+    ``result`` when the caller has it already.
     """
     values = [v for v in result.window if v is not None and v > 0]
     values += [v for v in result.band if v > 0]
@@ -347,7 +349,7 @@ def window_chart(result: NetworkResult) -> str:
     series = rec.series if rec is not None else result.network.rules.series
     body = [
         f'<title id="{pid}-t">Resistance window of {escape(result.network.net)}</title>',
-        f'<desc id="{pid}-d">{escape(chart_text(result))}</desc>',
+        f'<desc id="{pid}-d">{escape(chart_text(result) if text is None else text)}</desc>',
         _defs(pid),
         f"<style>text{{font:11px system-ui,-apple-system,'Segoe UI',Roboto,sans-serif;"
         f"fill:{_INK}}}.lbl,.win,.none{{paint-order:stroke;stroke:#fff;stroke-width:3px;"

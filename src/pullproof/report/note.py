@@ -38,7 +38,6 @@ from ..results import (
     Figure,
     Finding,
     NetworkResult,
-    PointValues,
     ReviewResult,
     Verdict,
 )
@@ -423,12 +422,7 @@ def _operating(nr: NetworkResult, reg: _Registry) -> OperatingView | None:
     rows = [row(f"fitted {refs}", fit.ohms, fit.band, cells, fitted=True, pick=False)]
     rec = nr.recommendation
     if rec is not None:
-        cell, units = note_html.cell, PointValues.UNITS
-        for p in rec.points:
-            pick = rec.pick is not None and p.ohms == rec.pick
-            label = f"{rec.series} pick" if pick else ""
-            cells = "".join(map(cell, p.figures, units))
-            rows.append(row(label, p.ohms, p.band, cells, fitted=False, pick=pick))
+        rows.append(note_html.candidate_rows(rec.points, rec.pick, rec.series))
     return OperatingView(tuple(columns), Markup("".join(rows)))
 
 
@@ -441,14 +435,15 @@ def _network_view(nr: NetworkResult, anchor: str) -> NetworkView:
     value = (
         f"{format_ohms(res.ohms.magnitude('ohm'))} ±{format_percent(res.tolerance.magnitude(''))}"
     )
+    words = chart_text(nr)
     return NetworkView(
         anchor,
         nr,
         circuit,
         rows,
         reg.entries(),
-        Markup(window_chart(nr)),
-        chart_text(nr),
+        Markup(window_chart(nr, words)),
+        words,
         value,
         ", ".join(res.refs),
         operating,

@@ -16,6 +16,7 @@ from typing import TYPE_CHECKING
 from markupsafe import Markup, escape
 
 from ..eseries import format_rkm as _format_rkm
+from ..results import PointValues
 from .format import format_ohms, format_value
 
 if TYPE_CHECKING:
@@ -42,7 +43,7 @@ def esc(text: str) -> str:
     return str(escape(text))
 
 
-@lru_cache(maxsize=16384, typed=True)
+@lru_cache(maxsize=16384)
 def cell(x: float | None, unit: str) -> str:
     """One operating-point figure as its table cell; "—" where it does not apply."""
     text = "—" if x is None else esc(format_value(x, unit))
@@ -71,6 +72,24 @@ def point_row(
         f'\n      <tr class="{klass}"><td>{mark}{_value(ohms)}{note}</td>'
         f'<td class="small">{_ohms(band[0])} … {_ohms(band[1])}</td>{cells}</tr>'
     )
+
+
+def candidate_rows(points: Iterable[PointValues], pick: float | None, series: str) -> str:
+    """The rows of every recommended candidate after the fitted one (the hot loop of the
+    note: about 45 per network), the pick labelled "E24 pick" and marked."""
+    value, ohms, cell_, units = _value, _ohms, cell, PointValues.UNITS
+    out = []
+    for p in points:
+        cells = "".join(map(cell_, p.figures, units))
+        if pick is not None and p.ohms == pick:
+            out.append(point_row(f"{series} pick", p.ohms, p.band, cells, fitted=False, pick=True))
+        else:
+            band = f"{ohms(p.band[0])} … {ohms(p.band[1])}"
+            out.append(
+                f'\n      <tr class="op-row"><td>{value(p.ohms)}</td>'
+                f'<td class="small">{band}</td>{cells}</tr>'
+            )
+    return "".join(out)
 
 
 def candidates(values: Sequence[float]) -> Markup:
