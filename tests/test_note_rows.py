@@ -18,7 +18,7 @@ from pullproof.provenance import Origin, Provenance, Sourced, Status
 from pullproof.quantity import Qty
 from pullproof.report import note_html, note_rows
 from pullproof.report.format import format_sourced
-from pullproof.report.note import FigureView, LimitRow, TermRef
+from pullproof.report.note import CircuitRow, FigureView, LimitRow, TermRef
 from pullproof.results import Assumption
 
 ENV = jinja2.Environment(autoescape=True, trim_blocks=True, lstrip_blocks=True)
@@ -132,3 +132,18 @@ def test_network_links_match_the_template_loop() -> None:
     )
     for nets in ([("net-a", HOSTILE), ("net-b", "/vents/VENT_LIMIT")], [("net-c", "X")], []):
         assert note_rows.network_links(nets) == loop.render(nets=nets)
+
+
+def test_circuit_list_matches_the_template_loop() -> None:
+    loop = ENV.from_string(
+        '  <dl class="circuit">\n    {% for row in nv.circuit %}\n'
+        "    <dt>{{ row.label }}</dt>\n"
+        '    <dd>{{ row.text }}{% if row.values %}<br><span class="vals">'
+        "{{ term_list(row.values, nv.anchor) }}</span>{% endif %}</dd>\n"
+        "    {% endfor %}\n  </dl>"
+    )
+    rows = [CircuitRow("Net", HOSTILE, ()), CircuitRow(HOSTILE, "R1, size 0603", TERMS)]
+    for circuit in (rows, []):
+        want = loop.render(nv={"circuit": circuit, "anchor": "net-d"})
+        html = note_rows.circuit_list(circuit, "net-d")
+        assert _placed('  <dl class="circuit">\n  {{- html }}\n  </dl>', html) == want

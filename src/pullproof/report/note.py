@@ -42,7 +42,7 @@ from ..results import (
     Verdict,
 )
 from ..textfile import write_report
-from . import note_html, note_rows
+from . import note_html, note_rows, note_tags
 from .chart import chart_text, window_chart
 from .format import (
     format_margin,
@@ -626,6 +626,10 @@ def note_environment(directory: Path | None = None) -> jinja2.Environment:
         missing_list=note_rows.missing_list,
         assumption_items=note_rows.assumption_items,
         network_links=note_rows.network_links,
+        circuit_list=note_rows.circuit_list,
+        verdict=note_tags.verdict,
+        assumed=note_tags.assumed,
+        accepted=note_tags.accepted,
     )
     return env
 

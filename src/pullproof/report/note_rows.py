@@ -19,9 +19,16 @@ from .format import format_sourced
 from .note_html import esc, term_items, terms
 
 if TYPE_CHECKING:
-    from .note import FigureView, LimitRow
+    from .note import CircuitRow, FigureView, LimitRow
 
-__all__ = ["assumption_items", "figure_list", "limit_rows", "missing_list", "network_links"]
+__all__ = [
+    "assumption_items",
+    "circuit_list",
+    "figure_list",
+    "limit_rows",
+    "missing_list",
+    "network_links",
+]
 
 _MARK = {
     None: '<span class="mark unknown">unknown</span>',
@@ -59,6 +66,15 @@ def _limit_row(r: LimitRow, anchor: str) -> str:
         f'<div class="small muted">{esc(r.outcome)}</div></td>\n'
         f"      </tr>"
     )
+
+
+def circuit_list(rows: Iterable[CircuitRow], anchor: str) -> Markup:
+    """The circuit in words (a ``<dl>``), each line with its numbers' provenance links."""
+    out = []
+    for r in rows:
+        vals = f'<br><span class="vals">{terms(r.values, anchor)}</span>' if r.values else ""
+        out.append(f"\n    <dt>{esc(r.label)}</dt>\n    <dd>{esc(r.text)}{vals}</dd>")
+    return Markup("".join(out))
 
 
 def missing_list(items: Iterable[Missing]) -> Markup:
