@@ -199,17 +199,14 @@ class _Registry:
         # registry is in use).
         self._seen: dict[int, tuple[Sourced, str, str, str, str, str]] = {}
 
-    def _facts(self, value: Sourced) -> tuple[Sourced, str, str, str, str, str]:
+    def ref(self, symbol: str, value: Sourced) -> TermRef:
         known = self._seen.get(id(value))
         if known is None or known[0] is not value:
             src = value.source
             text = format_sourced(value)
             known = (value, text, src.where, src.status.value, src.reason, src.origin.value)
             self._seen[id(value)] = known
-        return known
-
-    def ref(self, symbol: str, value: Sourced) -> TermRef:
-        _, text, where, status, reason, origin = self._facts(value)
+        _, text, where, status, reason, origin = known
         key = (symbol, text, where, status, reason)
         term = self._index.get(key)
         if term is None:
@@ -320,8 +317,10 @@ def _circuit(net: PullNetwork, reg: _Registry) -> tuple[CircuitRow, ...]:
 def _rows(nr: NetworkResult, reg: _Registry) -> tuple[LimitRow, ...]:
     lo, hi = nr.band
     out: list[LimitRow] = []
+    ref = reg.ref
+    sides = [w for w in nr.window if w is not None]
     for b in nr.bounds:
-        terms = tuple(reg.ref(t.symbol, t.value) for t in b.terms)
+        terms = tuple([ref(t.symbol, t.value) for t in b.terms])
         side = "R_lo" if b.kind is BoundKind.MIN else "R_hi"
         sign = "≥" if b.kind is BoundKind.MIN else "≤"
         if b.ohms is None:
@@ -331,7 +330,6 @@ def _rows(nr: NetworkResult, reg: _Registry) -> tuple[LimitRow, ...]:
             end = lo if b.kind is BoundKind.MIN else hi
             met = end >= b.ohms if b.kind is BoundKind.MIN else end <= b.ohms
             outcome = f"{side} = {format_ohms(end)}"
-        sides = [w for w in nr.window if w is not None]
         binding = (
             (b.hard or bool(b.assumed))
             and b.ohms is not None
@@ -358,7 +356,7 @@ def _rows(nr: NetworkResult, reg: _Registry) -> tuple[LimitRow, ...]:
             )
         )
     for c in nr.checks:
-        terms = tuple(reg.ref(t.symbol, t.value) for t in c.terms)
+        terms = tuple([ref(t.symbol, t.value) for t in c.terms])
         outcome = (
             f"{c.sentence[:1].upper()}{c.sentence[1:]}."
             if c.sentence
@@ -412,7 +410,7 @@ def _operating(nr: NetworkResult, reg: _Registry) -> OperatingView | None:
         title = "Rise time (I2C)" if f.symbol == "t_r" else title
         columns.append(
             FigureView(title, f.formula, f.substituted, _cell(f),
-                       tuple(reg.ref(t.symbol, t.value) for t in f.terms), f.note, f.missing)
+                       tuple([reg.ref(t.symbol, t.value) for t in f.terms]), f.note, f.missing)
         )  # fmt: skip
     refs = "/".join(nr.network.resistor.refs)
     fit = op.values()

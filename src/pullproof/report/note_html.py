@@ -9,9 +9,9 @@ template loops wrote; the template places each fragment with ``{{- … }}``.
 
 from __future__ import annotations
 
-from collections.abc import Iterable, Sequence
-from functools import lru_cache
-from typing import TYPE_CHECKING
+from collections.abc import Callable, Iterable, Sequence
+from functools import lru_cache, partial
+from typing import TYPE_CHECKING, Any
 
 from markupsafe import Markup, escape
 
@@ -37,10 +37,23 @@ __all__ = [
 format_rkm = lru_cache(maxsize=4096)(_format_rkm)
 
 
-@lru_cache(maxsize=65536)
-def esc(text: str) -> str:
-    """``text`` escaped as the template's autoescape would (names and numbers recur)."""
-    return str(escape(text))
+class _Memo(dict[Any, str]):
+    """The text of each key, made on first use: a dict lookup is the cheapest cache hit,
+    and the table loops make hundreds per network. Emptied when it reaches ``cap``."""
+
+    def __init__(self, make: Callable[[Any], str], cap: int = 1 << 14) -> None:
+        super().__init__()
+        self.make, self.cap = make, cap
+
+    def __missing__(self, key: Any) -> str:
+        if len(self) >= self.cap:
+            self.clear()
+        text = self[key] = self.make(key)
+        return text
+
+
+#: ``text`` escaped as the template's autoescape would (names and numbers recur)
+esc: Callable[[str], str] = _Memo(lambda text: str(escape(text)), 1 << 16).__getitem__
 
 
 @lru_cache(maxsize=16384)
@@ -50,14 +63,10 @@ def cell(x: float | None, unit: str) -> str:
     return f'<td class="num">{text}</td>'
 
 
-@lru_cache(maxsize=16384, typed=True)
-def _ohms(x: float) -> str:
-    return esc(format_ohms(x))
-
-
-@lru_cache(maxsize=16384, typed=True)
-def _value(x: float) -> str:
-    return f"{_ohms(x)} <code>{esc(format_rkm(x))}</code>"
+_ohms = _Memo(lambda x: esc(format_ohms(x)))
+_value = _Memo(lambda x: f"{_ohms[x]} <code>{esc(format_rkm(x))}</code>")
+# one memo per operating-point column, in the order of PointValues.figures
+_CELLS = tuple(_Memo(partial(cell, unit=u)) for u in PointValues.UNITS)
 
 
 def point_row(
@@ -69,25 +78,27 @@ def point_row(
     mark = '<span aria-hidden="true">▲ </span>' if pick else ""
     note = f'<div class="small muted">{esc(label)}</div>' if label else ""
     return (
-        f'\n      <tr class="{klass}"><td>{mark}{_value(ohms)}{note}</td>'
-        f'<td class="small">{_ohms(band[0])} … {_ohms(band[1])}</td>{cells}</tr>'
+        f'\n      <tr class="{klass}"><td>{mark}{_value[ohms]}{note}</td>'
+        f'<td class="small">{_ohms[band[0]]} … {_ohms[band[1]]}</td>{cells}</tr>'
     )
 
 
 def candidate_rows(points: Iterable[PointValues], pick: float | None, series: str) -> str:
     """The rows of every recommended candidate after the fitted one (the hot loop of the
     note: about 45 per network), the pick labelled "E24 pick" and marked."""
-    value, ohms, cell_, units = _value, _ohms, cell, PointValues.UNITS
+    value, ohms = _value, _ohms
+    c0, c1, c2, c3, c4 = _CELLS
     out = []
     for p in points:
-        cells = "".join(map(cell_, p.figures, units))
+        f = p.figures
+        cells = f"{c0[f[0]]}{c1[f[1]]}{c2[f[2]]}{c3[f[3]]}{c4[f[4]]}"
         if pick is not None and p.ohms == pick:
             out.append(point_row(f"{series} pick", p.ohms, p.band, cells, fitted=False, pick=True))
         else:
-            band = f"{ohms(p.band[0])} … {ohms(p.band[1])}"
+            lo, hi = p.band
             out.append(
-                f'\n      <tr class="op-row"><td>{value(p.ohms)}</td>'
-                f'<td class="small">{band}</td>{cells}</tr>'
+                f'\n      <tr class="op-row"><td>{value[p.ohms]}</td>'
+                f'<td class="small">{ohms[lo]} … {ohms[hi]}</td>{cells}</tr>'
             )
     return "".join(out)
 
@@ -98,7 +109,7 @@ def candidates(values: Sequence[float]) -> Markup:
 
 
 def _candidate(c: float) -> str:
-    return f"{esc(format_ohms(c))} (<code>{esc(format_rkm(c))}</code>)"
+    return f"{_ohms[c]} (<code>{esc(format_rkm(c))}</code>)"
 
 
 def _ref(t: TermRef, anchor: str) -> str:
