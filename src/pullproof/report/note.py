@@ -163,6 +163,8 @@ class OperatingView:
     # the table's rows as HTML: the fitted value ("fitted R10"), then every candidate, the
     # pick ("E24 pick") marked; 46 rows of 7 cells per network are too many for the template
     rows: Markup
+    cols: Markup  # a <col> per column
+    heads: Markup  # a <th> per column, its title
 
 
 @dataclass(frozen=True)
@@ -421,7 +423,9 @@ def _operating(nr: NetworkResult, reg: _Registry) -> OperatingView | None:
     rec = nr.recommendation
     if rec is not None:
         rows.append(note_html.candidate_rows(rec.points, rec.pick, rec.series))
-    return OperatingView(tuple(columns), Markup("".join(rows)))
+    cols = '<col style="width:13.2%">' * len(columns)
+    heads = "".join([f'<th class="num">{note_html.esc(c.title)}</th>' for c in columns])
+    return OperatingView(tuple(columns), Markup("".join(rows)), Markup(cols), Markup(heads))
 
 
 def _network_view(nr: NetworkResult, anchor: str) -> NetworkView:
