@@ -160,11 +160,16 @@ class OperatingView:
     """The operating-point table of one network."""
 
     columns: tuple[FigureView, ...]
-    # the table's rows as HTML: the fitted value ("fitted R10"), then every candidate, the
-    # pick ("E24 pick") marked; 46 rows of 7 cells per network are too many for the template
-    rows: Markup
+    result: NetworkResult  # whose operating points the rows show
     cols: Markup  # a <col> per column
     heads: Markup  # a <th> per column, its title
+
+    @property
+    def rows(self) -> Markup:
+        """The table's rows as HTML: the fitted value ("fitted R10"), then every candidate,
+        the pick ("E24 pick") marked. 46 rows of 7 cells a network are too many for the
+        template, and are written when the template places them (see NetworkView.chart)."""
+        return Markup(_point_rows(self.result))
 
 
 @dataclass(frozen=True)
@@ -176,11 +181,16 @@ class NetworkView:
     circuit: tuple[CircuitRow, ...]
     rows: tuple[LimitRow, ...]
     provenance: tuple[ProvEntry, ...]
-    chart: Markup
     chart_text: str
     value_text: str
     refs_text: str
     operating: OperatingView | None = None
+
+    @property
+    def chart(self) -> Markup:
+        """The window chart, drawn when the template places it: 30 kB a network that a
+        large board's note would otherwise hold in memory until the page is joined."""
+        return Markup(window_chart(self.result, self.chart_text))
 
 
 @dataclass(frozen=True)
@@ -414,18 +424,23 @@ def _operating(nr: NetworkResult, reg: _Registry) -> OperatingView | None:
             FigureView(title, f.formula, f.substituted, _cell(f),
                        tuple([reg.ref(t.symbol, t.value) for t in f.terms]), f.note, f.missing)
         )  # fmt: skip
+    cols = '<col style="width:13.2%">' * len(columns)
+    heads = "".join([f'<th class="num">{note_html.esc(c.title)}</th>' for c in columns])
+    return OperatingView(tuple(columns), nr, Markup(cols), Markup(heads))
+
+
+def _point_rows(nr: NetworkResult) -> str:
+    op = nr.operating
+    assert op is not None  # an OperatingView exists only for a network with one
     refs = "/".join(nr.network.resistor.refs)
     fit = op.values()
     # the fitted row's cells come from its figures: "unknown" where a value is missing
     cells = "".join([f'<td class="num">{note_html.esc(_cell(f))}</td>' for f in op.figures])
-    row = note_html.point_row
-    rows = [row(f"fitted {refs}", fit.ohms, fit.band, cells, fitted=True, pick=False)]
+    row = note_html.point_row(f"fitted {refs}", fit.ohms, fit.band, cells, fitted=True, pick=False)
     rec = nr.recommendation
-    if rec is not None:
-        rows.append(note_html.candidate_rows(rec.points, rec.pick, rec.series))
-    cols = '<col style="width:13.2%">' * len(columns)
-    heads = "".join([f'<th class="num">{note_html.esc(c.title)}</th>' for c in columns])
-    return OperatingView(tuple(columns), Markup("".join(rows)), Markup(cols), Markup(heads))
+    if rec is None:
+        return row
+    return row + note_html.candidate_rows(rec.points, rec.pick, rec.series)
 
 
 def _network_view(nr: NetworkResult, anchor: str) -> NetworkView:
@@ -444,7 +459,6 @@ def _network_view(nr: NetworkResult, anchor: str) -> NetworkView:
         circuit,
         rows,
         reg.entries(),
-        Markup(window_chart(nr, words)),
         words,
         value,
         ", ".join(res.refs),
