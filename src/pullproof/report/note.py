@@ -42,7 +42,7 @@ from ..results import (
     Verdict,
 )
 from ..textfile import write_report
-from . import note_html, note_rows, note_tags
+from . import note_html, note_rows, note_summary, note_tags
 from .chart import chart_text, window_chart
 from .format import (
     format_margin,
@@ -646,6 +646,8 @@ def note_environment(directory: Path | None = None) -> jinja2.Environment:
         verdict=note_tags.verdict,
         assumed=note_tags.assumed,
         accepted=note_tags.accepted,
+        summary_rows=note_summary.summary_rows,
+        recommendation=note_summary.recommendation,
     )
     return env
 

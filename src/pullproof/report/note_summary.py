@@ -1,0 +1,61 @@
+"""The summary table's rows and each network's recommendation, as Python-built HTML.
+
+Like :mod:`.note_rows`: byte for byte what the template lines they replaced wrote, every
+text escaped once, so the summary (one row per network) costs no template expressions.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Iterable
+from typing import TYPE_CHECKING
+
+from markupsafe import Markup
+
+from ..results import NetworkResult
+from .format import format_ohms, format_percent, format_window
+from .note_html import candidates, esc
+from .note_tags import accepted, assumed, verdict
+
+if TYPE_CHECKING:
+    from .note import NetworkView
+
+__all__ = ["recommendation", "summary_rows"]
+
+
+def summary_rows(views: Iterable[NetworkView]) -> Markup:
+    """One ``<tr>`` per network: net, resistor, value, pull, window and verdict."""
+    out = []
+    for nv in views:
+        nr = nv.result
+        net = nr.network
+        tag = ' <span class="tag">hazardous voltage</span>' if net.mains_adjacent else ""
+        out.append(
+            f'\n      <tr><td><a href="#{esc(nv.anchor)}">{esc(net.net)}</a>{tag}</td>\n'
+            f"        <td>{esc(nv.refs_text)}</td><td>{esc(nv.value_text)}</td>\n"
+            f"        <td>{esc(net.direction.value)} to {esc(net.rail.name)}</td>\n"
+            f"        <td>{esc(format_window(nr.window))}</td><td>{verdict(nr.verdict)}"
+            f"{assumed(nr)}{accepted(nr.accepted)}</td></tr>"
+        )
+    return Markup("".join(out))
+
+
+def recommendation(nr: NetworkResult) -> Markup:
+    """The recommendation paragraphs: the pick and every fitting value, or why none."""
+    rec = nr.recommendation
+    if rec is None:
+        why = (
+            "the window is not known on both sides"
+            if nr.verdict.value == "incomplete"
+            else "the window is not closed on both sides"
+        )
+        return Markup(f'<p class="muted">No recommendation: {why}.</p>')
+    series, tol = esc(rec.series), esc(format_percent(rec.tolerance))
+    if rec.pick is None:
+        return Markup(f"<p>No {series} value fits the window at ±{tol}.</p>")
+    n = len(rec.candidates)
+    return Markup(
+        f"<p><strong>{series} {esc(format_ohms(rec.pick))}</strong> at ±{tol} — "
+        f"{esc(rec.reason)} (policy: {esc(rec.policy)}).</p>\n"
+        f'  <p class="cands">{n} {series} value{"" if n == 1 else "s"} whose whole band '
+        f"fits: {candidates(rec.candidates)}.</p>"
+    )
