@@ -10,7 +10,7 @@ from __future__ import annotations
 from dataclasses import replace
 
 from pullproof.report import note_summary
-from pullproof.report.note import note_context, note_environment
+from pullproof.report.note import AssumedRow, note_context, note_environment
 from pullproof.results import ReviewResult
 from resultfactory import hostile_result, sample_result
 
@@ -67,3 +67,26 @@ def test_recommendation_matches_the_template_lines() -> None:
             for v in variants:
                 want = ENV.from_string(RECOMMENDATION).render(nr=v)
                 assert placed.render(html=note_summary.recommendation(v)) == want
+
+
+ASSUMED = """    <tbody>
+    {% for a in assumptions %}
+      <tr class="assumed-value"><td>{{ a.part or "—" }}</td><td>{{ a.pin or "—" }}</td><td>{{ a.quantity }}</td><td>{{ a.value }}</td><td>{{ a.basis }} <span class="status status-{{ a.status | replace(' ', '-') }}">{{ a.status }}</span></td><td class="small">{{ a.fix }}</td>
+        <td class="small">{{ network_links(a.networks) }}</td></tr>
+    {% endfor %}
+    </tbody>"""  # noqa: E501
+
+
+def test_assumed_value_rows_match_the_template_loop() -> None:
+    hostile = "<b>&\"'x"  # every character markupsafe escapes (its documented set)
+    # a greenhouse vent input whose leakage is the HC family figure (from memory)
+    made = [
+        AssumedRow(part, pin, hostile, "1\u00a0µA", hostile, hostile, "common practice", nets)
+        for part, pin, nets in (("", "", ()), ("U1", "7 (GPIO5)", (("net-a", hostile),)))
+    ]
+    for result in _results():
+        rows = note_context(result, title="t", date="d")["assumptions"] + made
+        want = ENV.from_string(ASSUMED).render(assumptions=rows)
+        html = note_summary.assumed_value_rows(rows)
+        got = ENV.from_string("    <tbody>\n    {{- html }}\n    </tbody>").render(html=html)
+        assert got == want

@@ -648,6 +648,7 @@ def note_environment(directory: Path | None = None) -> jinja2.Environment:
         accepted=note_tags.accepted,
         summary_rows=note_summary.summary_rows,
         recommendation=note_summary.recommendation,
+        assumed_value_rows=note_summary.assumed_value_rows,
     )
     return env
 

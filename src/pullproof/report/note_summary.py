@@ -14,12 +14,13 @@ from markupsafe import Markup
 from ..results import NetworkResult
 from .format import format_ohms, format_percent, format_window
 from .note_html import candidates, esc
+from .note_rows import network_links
 from .note_tags import accepted, assumed, verdict
 
 if TYPE_CHECKING:
-    from .note import NetworkView
+    from .note import AssumedRow, NetworkView
 
-__all__ = ["recommendation", "summary_rows"]
+__all__ = ["assumed_value_rows", "recommendation", "summary_rows"]
 
 
 def summary_rows(views: Iterable[NetworkView]) -> Markup:
@@ -35,6 +36,23 @@ def summary_rows(views: Iterable[NetworkView]) -> Markup:
             f"        <td>{esc(net.direction.value)} to {esc(net.rail.name)}</td>\n"
             f"        <td>{esc(format_window(nr.window))}</td><td>{verdict(nr.verdict)}"
             f"{assumed(nr)}{accepted(nr.accepted)}</td></tr>"
+        )
+    return Markup("".join(out))
+
+
+def assumed_value_rows(rows: Iterable[AssumedRow]) -> Markup:
+    """The "Assumed values to confirm" table: one ``<tr>`` per assumed number (a board's
+    networks share them, but each part's pins have their own)."""
+    out = []
+    for a in rows:
+        status = (
+            f'<span class="status status-{esc(a.status.replace(" ", "-"))}">{esc(a.status)}</span>'
+        )
+        out.append(
+            f'\n      <tr class="assumed-value"><td>{esc(a.part or "—")}</td>'
+            f"<td>{esc(a.pin or '—')}</td><td>{esc(a.quantity)}</td><td>{esc(a.value)}</td>"
+            f'<td>{esc(a.basis)} {status}</td><td class="small">{esc(a.fix)}</td>\n'
+            f'        <td class="small">{network_links(a.networks)}</td></tr>'
         )
     return Markup("".join(out))
 
