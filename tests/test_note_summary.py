@@ -90,3 +90,24 @@ def test_assumed_value_rows_match_the_template_loop() -> None:
         html = note_summary.assumed_value_rows(rows)
         got = ENV.from_string("    <tbody>\n    {{- html }}\n    </tbody>").render(html=html)
         assert got == want
+
+
+HEAD = """{% set nr = nv.result %}
+{% set net = nr.network %}
+<section class="network" id="{{ nv.anchor }}" aria-labelledby="{{ nv.anchor }}_h">
+  <header>
+    <div><div class="kicker">Pull-{{ net.direction.value }} network</div><h2 id="{{ nv.anchor }}_h">{{ net.net }}</h2></div>
+    <div>{{ verdict(nr.verdict) }}{{ assumed(nr) }}</div>
+  </header>
+  <p class="reason"><strong>Verdict: {{ nr.verdict.value }}{{ " (assumed)" if nr.basis.value == "assumed" else "" }}.</strong> {{ nr.reason }}</p>
+    <tbody><tr><td>{{ nr.window | window }}</td><td>{{ nr.band[0] | ohms }} … {{ nr.band[1] | ohms }}</td><td>{{ nr.margins[0] | margin("below") }}</td><td>{{ nr.margins[1] | margin("above") }}</td></tr></tbody>
+"""  # noqa: E501
+
+
+def test_network_head_and_numbers_row_match_the_template_lines() -> None:
+    placed = ENV.from_string(
+        "{{ network_head(nv) }}\n    <tbody>{{ numbers_row(nv.result) }}</tbody>\n"
+    )
+    for result in _results():
+        for nv in note_context(result, title="t", date="d")["networks"]:
+            assert placed.render(nv=nv) == ENV.from_string(HEAD).render(nv=nv)

@@ -649,6 +649,8 @@ def note_environment(directory: Path | None = None) -> jinja2.Environment:
         summary_rows=note_summary.summary_rows,
         recommendation=note_summary.recommendation,
         assumed_value_rows=note_summary.assumed_value_rows,
+        network_head=note_summary.network_head,
+        numbers_row=note_summary.numbers_row,
     )
     return env
 

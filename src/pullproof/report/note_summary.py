@@ -1,4 +1,5 @@
-"""The summary table's rows and each network's recommendation, as Python-built HTML.
+"""The summary table's rows and, for each network, its section's head, number table row and
+recommendation, as Python-built HTML.
 
 Like :mod:`.note_rows`: byte for byte what the template lines they replaced wrote, every
 text escaped once, so the summary (one row per network) costs no template expressions.
@@ -12,7 +13,7 @@ from typing import TYPE_CHECKING
 from markupsafe import Markup
 
 from ..results import NetworkResult
-from .format import format_ohms, format_percent, format_window
+from .format import format_margin, format_ohms, format_percent, format_window
 from .note_html import candidates, esc
 from .note_rows import network_links
 from .note_tags import accepted, assumed, verdict
@@ -20,7 +21,7 @@ from .note_tags import accepted, assumed, verdict
 if TYPE_CHECKING:
     from .note import AssumedRow, NetworkView
 
-__all__ = ["assumed_value_rows", "recommendation", "summary_rows"]
+__all__ = ["assumed_value_rows", "network_head", "numbers_row", "recommendation", "summary_rows"]
 
 
 def summary_rows(views: Iterable[NetworkView]) -> Markup:
@@ -76,4 +77,32 @@ def recommendation(nr: NetworkResult) -> Markup:
         f"{esc(rec.reason)} (policy: {esc(rec.policy)}).</p>\n"
         f'  <p class="cands">{n} {series} value{"" if n == 1 else "s"} whose whole band '
         f"fits: {candidates(rec.candidates)}.</p>"
+    )
+
+
+def network_head(nv: NetworkView) -> Markup:
+    """A network section's opening tag, header (net, verdict) and verdict sentence."""
+    nr = nv.result
+    net = nr.network
+    a = esc(nv.anchor)
+    word = esc(nr.verdict.value) + (" (assumed)" if nr.basis.value == "assumed" else "")
+    return Markup(
+        f'<section class="network" id="{a}" aria-labelledby="{a}_h">\n'
+        f"  <header>\n"
+        f'    <div><div class="kicker">Pull-{esc(net.direction.value)} network</div>'
+        f'<h2 id="{a}_h">{esc(net.net)}</h2></div>\n'
+        f"    <div>{verdict(nr.verdict)}{assumed(nr)}</div>\n"
+        f"  </header>\n"
+        f'  <p class="reason"><strong>Verdict: {word}.</strong> {esc(nr.reason)}</p>'
+    )
+
+
+def numbers_row(nr: NetworkResult) -> Markup:
+    """The window, fitted band and the room at each edge, as one table row."""
+    lo, hi = nr.band
+    return Markup(
+        f"<tr><td>{esc(format_window(nr.window))}</td>"
+        f"<td>{esc(format_ohms(lo))} … {esc(format_ohms(hi))}</td>"
+        f"<td>{esc(format_margin(nr.margins[0], 'below'))}</td>"
+        f"<td>{esc(format_margin(nr.margins[1], 'above'))}</td></tr>"
     )
