@@ -221,10 +221,10 @@ def test_template_typo_raises(tmp_path: Path) -> None:
     for f in (REPO / "templates").iterdir():
         shutil.copy(f, tmp_path / f.name)
     main = tmp_path / note_mod.TEMPLATE
-    main.write_text(main.read_text().replace("{{ nv.refs_text }}", "{{ nv.refs_txt }}"))
+    main.write_text(main.read_text().replace("{{ nv.chart_text }}", "{{ nv.chart_txt }}"))
     env = note_environment(tmp_path)
     ctx = note_context(sample_result(1), title="t", date="d")
-    with pytest.raises(jinja2.UndefinedError, match="refs_txt"):
+    with pytest.raises(jinja2.UndefinedError, match="chart_txt"):
         env.get_template(note_mod.TEMPLATE).render(**ctx)
 
 

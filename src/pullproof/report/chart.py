@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import hashlib
 import math
+from functools import lru_cache
 from html import escape
 
 from ..results import Bound, BoundKind, NetworkResult
@@ -159,7 +160,10 @@ def _defs(pid: str) -> str:
     return "<defs>" + "".join(lines) + "</defs>"
 
 
-def _axis(ax: _Axis) -> list[str]:
+@lru_cache(maxsize=64)
+def _axis(d0: int, d1: int) -> str:
+    """The decade axis with its grid and labels: the same for every chart of one range."""
+    ax = _Axis(d0, d1)
     out = [
         f'<line x1="{_X0}" y1="{_AXIS}" x2="{_X1}" y2="{_AXIS}" stroke="{_INK}" stroke-width="1"/>'
     ]
@@ -180,7 +184,7 @@ def _axis(ax: _Axis) -> list[str]:
                     f'<line x1="{xm:.1f}" y1="{_AXIS}" x2="{xm:.1f}" y2="{_AXIS + 3.5}" '
                     f'stroke="{_INK}" stroke-width="0.6"/>'
                 )
-    return out
+    return "".join(out)
 
 
 def _regions(result: NetworkResult, ax: _Axis, pid: str) -> list[str]:
@@ -281,11 +285,7 @@ def _candidates(result: NetworkResult, ax: _Axis) -> list[str]:
     rec = result.recommendation
     if rec is None:
         return []
-    out = [
-        f'<line class="cand" x1="{ax.x(c):.1f}" y1="{_TICK[0]}" x2="{ax.x(c):.1f}" '
-        f'y2="{_TICK[1]}" stroke="{_INK}" stroke-width="1"/>'
-        for c in rec.candidates
-    ]
+    out = [_tick(ax.d0, ax.d1, c) for c in rec.candidates]
     if rec.pick is not None:
         x = ax.x(rec.pick)
         y = _TICK[0] - 2
@@ -299,6 +299,17 @@ def _candidates(result: NetworkResult, ax: _Axis) -> list[str]:
     return out
 
 
+@lru_cache(maxsize=4096)
+def _tick(d0: int, d1: int, ohms: float) -> str:
+    # E-series candidates recur from chart to chart on the same decades
+    x = _Axis(d0, d1).x(ohms)
+    return (
+        f'<line class="cand" x1="{x:.1f}" y1="{_TICK[0]}" x2="{x:.1f}" '
+        f'y2="{_TICK[1]}" stroke="{_INK}" stroke-width="1"/>'
+    )
+
+
+@lru_cache(maxsize=64)
 def _legend(series: str) -> str:
     y = _H - 14
     items = [
@@ -319,12 +330,13 @@ def _legend(series: str) -> str:
     return "".join(items)
 
 
-def window_chart(result: NetworkResult) -> str:
+def window_chart(result: NetworkResult, text: str | None = None) -> str:
     """Draw ``result``'s window, limits, fitted band and recommendation as an inline SVG.
 
     The element ids are derived from the net name, so several charts can share
     one HTML page; the returned text is safe to insert unescaped (every label
-    from the schematic is escaped here).
+    from the schematic is escaped here). ``text`` is :func:`chart_text` of
+    ``result`` when the caller has it already.
     """
     values = [v for v in result.window if v is not None and v > 0]
     values += [v for v in result.band if v > 0]
@@ -337,13 +349,13 @@ def window_chart(result: NetworkResult) -> str:
     series = rec.series if rec is not None else result.network.rules.series
     body = [
         f'<title id="{pid}-t">Resistance window of {escape(result.network.net)}</title>',
-        f'<desc id="{pid}-d">{escape(chart_text(result))}</desc>',
+        f'<desc id="{pid}-d">{escape(chart_text(result) if text is None else text)}</desc>',
         _defs(pid),
         f"<style>text{{font:11px system-ui,-apple-system,'Segoe UI',Roboto,sans-serif;"
         f"fill:{_INK}}}.lbl,.win,.none{{paint-order:stroke;stroke:#fff;stroke-width:3px;"
         f"stroke-linejoin:round}}.lbl{{font-weight:600}}.ax{{fill:#4a5560}}.open{{font-style:italic;"
         f"fill:#4a5560}}.none{{font-weight:700;font-size:12px}}.leg{{font-size:10px}}</style>",
-        *_axis(ax),
+        _axis(ax.d0, ax.d1),
         *_regions(result, ax, pid),
         *_other_limits(result, ax),
         *_window(result, ax),

@@ -7,6 +7,7 @@ A non-breaking space joins number and unit so a printed table never splits them.
 
 from __future__ import annotations
 
+from functools import lru_cache
 from typing import Any
 
 from ..provenance import Sourced
@@ -54,6 +55,9 @@ def engineering(value: float, unit: str, sig: int = 3) -> str:
     return format_si(value, unit, sig=sig, sep=NBSP)
 
 
+# Boards repeat their values (10 kΩ, 3.3 V, the E-series): the two formatters the tables call
+# most are pure functions of a float, so each distinct value is formatted once per process.
+@lru_cache(maxsize=16384, typed=True)
 def format_ohms(ohms: float | None) -> str:
     """A resistance in ohms as "4.7 kΩ"; None (no limit known) as "—"."""
     return "—" if ohms is None else engineering(ohms, "Ω")
@@ -134,14 +138,18 @@ _QTY_SYMBOL = {"ohm": "Ω", "V": "V", "A": "A", "W": "W", "F": "F", "s": "s"}
 
 def _format_qty(value: Qty) -> str:
     """:func:`format_quantity` of a natively held quantity, without pint (same text)."""
-    unit = value.unit
+    return _qty_text(value.unit, float(value.magnitude))
+
+
+@lru_cache(maxsize=16384)
+def _qty_text(unit: str, x: float) -> str:
+    # a pure function of the unit and the float magnitude: rails and part data recur
     if unit in ("degC", "K"):
-        return f"{_digits(value.m_as('degC'))}{NBSP}°C"
+        return f"{_digits(Qty(x, unit).m_as('degC'))}{NBSP}°C"
     if unit == "":
-        return format_percent(float(value.magnitude))
+        return format_percent(x)
     if unit == "1/K":
-        return f"{_digits(float(value.magnitude) * 1e6)}{NBSP}ppm/K"
-    x = float(value.magnitude)
+        return f"{_digits(x * 1e6)}{NBSP}ppm/K"
     if unit == "V" and 0.1 <= abs(x) < 1000:  # designers write 0.8 V and 230 V, not 800 mV
         return f"{_digits(x, 4)}{NBSP}V"
     return engineering(x, _QTY_SYMBOL[unit])
@@ -150,6 +158,7 @@ def _format_qty(value: Qty) -> str:
 _SYMBOL = {"A": "A", "W": "W", "V": "V", "s": "s", "F": "F", "ohm": "Ω"}
 
 
+@lru_cache(maxsize=16384, typed=True)
 def format_value(x: float, unit: str) -> str:
     """A float in a base unit ("A", "W", "V", "s", "F", "ohm") as :func:`format_quantity`
     prints the same quantity, without building one (the operating-point tables hold many)."""

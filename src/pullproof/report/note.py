@@ -15,7 +15,7 @@ import hashlib
 import os
 import re
 from collections.abc import Iterable
-from dataclasses import dataclass, replace
+from dataclasses import dataclass
 from functools import lru_cache
 from importlib import resources
 from pathlib import Path
@@ -26,7 +26,6 @@ from markupsafe import Markup
 
 from .. import __version__
 from ..errors import PullproofError
-from ..eseries import format_rkm as _format_rkm
 from ..hazard import safety_caution
 from ..network import Missing, PullNetwork
 from ..provenance import Sourced
@@ -39,11 +38,11 @@ from ..results import (
     Figure,
     Finding,
     NetworkResult,
-    PointValues,
     ReviewResult,
     Verdict,
 )
 from ..textfile import write_report
+from . import note_html, note_rows, note_summary, note_tags
 from .chart import chart_text, window_chart
 from .format import (
     format_margin,
@@ -53,9 +52,7 @@ from .format import (
     format_value,
     format_window,
 )
-
-# E-series values recur across networks; the code is the same each time.
-format_rkm = lru_cache(maxsize=4096)(_format_rkm)
+from .note_html import format_rkm
 
 __all__ = [
     "FileDigest",
@@ -146,19 +143,6 @@ class CircuitRow:
 
 
 @dataclass(frozen=True)
-class PointRow:
-    """One row of the operating-point table: a resistance and its figures over its band."""
-
-    label: str  # "fitted R10", "E24 pick", or "" for another candidate
-    value: str  # "10 kΩ"
-    rkm: str  # "10K"
-    band: str  # "9.43 kΩ … 10.6 kΩ"
-    cells: tuple[str, ...]  # one per column, "—" where the figure does not apply
-    fitted: bool
-    pick: bool
-
-
-@dataclass(frozen=True)
 class FigureView:
     """A column of the operating-point table: what it is, and its formula at the fitted value."""
 
@@ -176,7 +160,16 @@ class OperatingView:
     """The operating-point table of one network."""
 
     columns: tuple[FigureView, ...]
-    rows: tuple[PointRow, ...]
+    result: NetworkResult  # whose operating points the rows show
+    cols: Markup  # a <col> per column
+    heads: Markup  # a <th> per column, its title
+
+    @property
+    def rows(self) -> Markup:
+        """The table's rows as HTML: the fitted value ("fitted R10"), then every candidate,
+        the pick ("E24 pick") marked. 46 rows of 7 cells a network are too many for the
+        template, and are written when the template places them (see NetworkView.chart)."""
+        return Markup(_point_rows(self.result))
 
 
 @dataclass(frozen=True)
@@ -188,11 +181,16 @@ class NetworkView:
     circuit: tuple[CircuitRow, ...]
     rows: tuple[LimitRow, ...]
     provenance: tuple[ProvEntry, ...]
-    chart: Markup
     chart_text: str
     value_text: str
     refs_text: str
     operating: OperatingView | None = None
+
+    @property
+    def chart(self) -> Markup:
+        """The window chart, drawn when the template places it: 30 kB a network that a
+        large board's note would otherwise hold in memory until the page is joined."""
+        return Markup(window_chart(self.result, self.chart_text))
 
 
 @dataclass(frozen=True)
@@ -206,39 +204,31 @@ class _Registry:
     """Numbers each distinct (symbol, value, source) of one network once."""
 
     def __init__(self) -> None:
-        self._index: dict[tuple[str, str, str, str, str], ProvEntry] = {}
-        # Formatting a quantity is slow and the same Sourced objects recur across limits,
-        # checks and the operating point: format each once (keyed by identity; the result
-        # holds them alive while the registry is in use).
-        self._texts: dict[int, tuple[Sourced, str]] = {}
-
-    def _text(self, value: Sourced) -> str:
-        known = self._texts.get(id(value))
-        if known is None or known[0] is not value:
-            known = (value, format_sourced(value))
-            self._texts[id(value)] = known
-        return known[1]
+        self._index: dict[tuple[str, str, str, str, str], TermRef] = {}
+        self._entries: list[ProvEntry] = []
+        # The same Sourced objects recur across limits, checks and the operating point:
+        # read and format each once (keyed by identity; the entry holds it alive while the
+        # registry is in use).
+        self._seen: dict[int, tuple[Sourced, str, str, str, str, str]] = {}
 
     def ref(self, symbol: str, value: Sourced) -> TermRef:
-        text = self._text(value)
-        src = value.source
-        key = (symbol, text, src.where, src.status.value, src.reason)
-        entry = self._index.get(key)
-        if entry is None:
-            entry = ProvEntry(
-                len(self._index) + 1,
-                symbol,
-                text,
-                src.where,
-                src.origin.value,
-                src.status.value,
-                src.reason,
-            )
-            self._index[key] = entry
-        return TermRef(symbol, text, entry.number)
+        known = self._seen.get(id(value))
+        if known is None or known[0] is not value:
+            src = value.source
+            text = format_sourced(value)
+            known = (value, text, src.where, src.status.value, src.reason, src.origin.value)
+            self._seen[id(value)] = known
+        _, text, where, status, reason, origin = known
+        key = (symbol, text, where, status, reason)
+        term = self._index.get(key)
+        if term is None:
+            number = len(self._entries) + 1
+            self._entries.append(ProvEntry(number, symbol, text, where, origin, status, reason))
+            term = self._index[key] = TermRef(symbol, text, number)
+        return term
 
     def entries(self) -> tuple[ProvEntry, ...]:
-        return tuple(self._index.values())
+        return tuple(self._entries)
 
 
 def _slug(text: str, prefix: str, taken: set[str]) -> str:
@@ -339,8 +329,10 @@ def _circuit(net: PullNetwork, reg: _Registry) -> tuple[CircuitRow, ...]:
 def _rows(nr: NetworkResult, reg: _Registry) -> tuple[LimitRow, ...]:
     lo, hi = nr.band
     out: list[LimitRow] = []
+    ref = reg.ref
+    sides = [w for w in nr.window if w is not None]
     for b in nr.bounds:
-        terms = tuple(reg.ref(t.symbol, t.value) for t in b.terms)
+        terms = tuple([ref(t.symbol, t.value) for t in b.terms])
         side = "R_lo" if b.kind is BoundKind.MIN else "R_hi"
         sign = "≥" if b.kind is BoundKind.MIN else "≤"
         if b.ohms is None:
@@ -350,7 +342,6 @@ def _rows(nr: NetworkResult, reg: _Registry) -> tuple[LimitRow, ...]:
             end = lo if b.kind is BoundKind.MIN else hi
             met = end >= b.ohms if b.kind is BoundKind.MIN else end <= b.ohms
             outcome = f"{side} = {format_ohms(end)}"
-        sides = [w for w in nr.window if w is not None]
         binding = (
             (b.hard or bool(b.assumed))
             and b.ohms is not None
@@ -377,7 +368,7 @@ def _rows(nr: NetworkResult, reg: _Registry) -> tuple[LimitRow, ...]:
             )
         )
     for c in nr.checks:
-        terms = tuple(reg.ref(t.symbol, t.value) for t in c.terms)
+        terms = tuple([ref(t.symbol, t.value) for t in c.terms])
         outcome = (
             f"{c.sentence[:1].upper()}{c.sentence[1:]}."
             if c.sentence
@@ -431,27 +422,25 @@ def _operating(nr: NetworkResult, reg: _Registry) -> OperatingView | None:
         title = "Rise time (I2C)" if f.symbol == "t_r" else title
         columns.append(
             FigureView(title, f.formula, f.substituted, _cell(f),
-                       tuple(reg.ref(t.symbol, t.value) for t in f.terms), f.note, f.missing)
+                       tuple([reg.ref(t.symbol, t.value) for t in f.terms]), f.note, f.missing)
         )  # fmt: skip
+    cols = '<col style="width:13.2%">' * len(columns)
+    heads = "".join([f'<th class="num">{note_html.esc(c.title)}</th>' for c in columns])
+    return OperatingView(tuple(columns), nr, Markup(cols), Markup(heads))
+
+
+def _point_rows(nr: NetworkResult) -> str:
+    op = nr.operating
+    assert op is not None  # an OperatingView exists only for a network with one
     refs = "/".join(nr.network.resistor.refs)
-    fitted = _point_row(op.values(), f"fitted {refs}", fitted=True, pick=False)
-    rows = [replace(fitted, cells=tuple(_cell(f) for f in op.figures))]  # "unknown" vs "—"
+    fit = op.values()
+    # the fitted row's cells come from its figures: "unknown" where a value is missing
+    cells = "".join([f'<td class="num">{note_html.esc(_cell(f))}</td>' for f in op.figures])
+    row = note_html.point_row(f"fitted {refs}", fit.ohms, fit.band, cells, fitted=True, pick=False)
     rec = nr.recommendation
-    if rec is not None:
-        for p in rec.points:
-            pick = rec.pick is not None and p.ohms == rec.pick
-            label = f"{rec.series} pick" if pick else ""
-            rows.append(_point_row(p, label, fitted=False, pick=pick))
-    return OperatingView(tuple(columns), tuple(rows))
-
-
-def _point_row(p: PointValues, label: str, *, fitted: bool, pick: bool) -> PointRow:
-    cells = tuple(
-        "—" if x is None else format_value(x, unit)
-        for x, unit in zip(p.figures, PointValues.UNITS, strict=True)
-    )
-    band = f"{format_ohms(p.band[0])} … {format_ohms(p.band[1])}"
-    return PointRow(label, format_ohms(p.ohms), format_rkm(p.ohms), band, cells, fitted, pick)
+    if rec is None:
+        return row
+    return row + note_html.candidate_rows(rec.points, rec.pick, rec.series)
 
 
 def _network_view(nr: NetworkResult, anchor: str) -> NetworkView:
@@ -463,14 +452,14 @@ def _network_view(nr: NetworkResult, anchor: str) -> NetworkView:
     value = (
         f"{format_ohms(res.ohms.magnitude('ohm'))} ±{format_percent(res.tolerance.magnitude(''))}"
     )
+    words = chart_text(nr)
     return NetworkView(
         anchor,
         nr,
         circuit,
         rows,
         reg.entries(),
-        Markup(window_chart(nr)),
-        chart_text(nr),
+        words,
         value,
         ", ".join(res.refs),
         operating,
@@ -641,6 +630,27 @@ def note_environment(directory: Path | None = None) -> jinja2.Environment:
         margin=format_margin,
         rkm=format_rkm,
         capitalize_first=_capitalize_first,
+    )
+    # Python-built fragments of the repeated rows (same bytes as the loops they replace)
+    env.globals.update(
+        candidate_list=note_html.candidates,
+        term_list=note_html.terms,
+        term_items=note_html.term_items,
+        provenance_list=note_html.provenance,
+        limit_rows=note_rows.limit_rows,
+        figure_list=note_rows.figure_list,
+        missing_list=note_rows.missing_list,
+        assumption_items=note_rows.assumption_items,
+        network_links=note_rows.network_links,
+        circuit_list=note_rows.circuit_list,
+        verdict=note_tags.verdict,
+        assumed=note_tags.assumed,
+        accepted=note_tags.accepted,
+        summary_rows=note_summary.summary_rows,
+        recommendation=note_summary.recommendation,
+        assumed_value_rows=note_summary.assumed_value_rows,
+        network_head=note_summary.network_head,
+        numbers_row=note_summary.numbers_row,
     )
     return env
 
