@@ -170,6 +170,14 @@ def test_partition_invariant_under_transform(
     assert partition(_draw(tmp, turns, flip, dx, dy)) == base
 
 
+def _depth(parent: dict[object, object], key: object) -> int:
+    """Steps from ``key`` to its root, read without compressing the path."""
+    d = 0
+    while parent[key] != key:
+        key, d = parent[key], d + 1
+    return d
+
+
 def test_union_find_stays_shallow_on_a_100k_pin_chain() -> None:
     # Union by size keeps every tree at most log2(n) deep (a textbook property of the
     # structure), so joining a 100 000-pin net in a chain, in either order, stays linear.
@@ -181,13 +189,5 @@ def test_union_find_stays_shallow_on_a_100k_pin_chain() -> None:
         j = _Joiner()
         for i in order:
             j.union(("P", "R", i), ("P", "R", i + 1))
-        parent = j.parent
-
-        def depth(key: object) -> int:
-            d = 0
-            while parent[key] != key:
-                key, d = parent[key], d + 1
-            return d
-
-        assert max(depth(k) for k in parent) <= n.bit_length()
-        assert len({j.find(k) for k in parent}) == 1
+        assert max(_depth(j.parent, k) for k in j.parent) <= n.bit_length()
+        assert len({j.find(k) for k in j.parent}) == 1

@@ -55,7 +55,6 @@ __all__ = [
 ]
 
 
-
 def Q_(value: Any, unit: Any = "") -> Any:
     """A quantity: a :class:`Qty` in a natively held unit (V, A, ohm, F, s, W, 1/K, "",
     degC, K), else a pint quantity. Unit strings are read once, never per value."""
