@@ -5,6 +5,7 @@ from __future__ import annotations
 import math
 from collections.abc import Callable, Iterable
 from dataclasses import dataclass
+from functools import lru_cache
 from typing import Protocol
 
 from ..network import Direction, InputLevels, InputOnNet, Missing, PullNetwork, PullResistor
@@ -65,6 +66,8 @@ class Builtin:
 # ---------------------------------------------------------------- formatting
 
 
+# A review formats the same few values (rails, levels, fitted parts) many times over.
+@lru_cache(maxsize=4096)
 def eng(x: float, symbol: str) -> str:
     """Format ``x`` (in base units) with an SI prefix and four significant digits."""
     return format_si(x, symbol, sig=4, minus="-")
