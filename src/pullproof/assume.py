@@ -20,7 +20,6 @@ review is exactly as strict as one without any stand-in.
 
 from __future__ import annotations
 
-import fnmatch
 import re
 from collections.abc import Callable, Mapping
 from dataclasses import fields, replace
@@ -33,7 +32,7 @@ from .families.match import PartInfo, PartKind, family_from_name
 from .network import InputLevels
 from .provenance import Origin, Sourced, Stands
 from .rail_range import RailStandIns
-from .rules import RailSpec, Rules
+from .rules import RailSpec, Rules, glob_any
 from .units import format_si
 
 __all__ = ["POWER_PIN_NAMES", "Assumer", "io_supply", "is_power", "stand", "value_text"]
@@ -46,6 +45,7 @@ _IO_SUPPLY = re.compile(r"(?i)(IO|VCCO|VDDQ|OVDD|^VL$|^V_?LOGIC)")
 _OTHER_SUPPLY = re.compile(
     r"(?i)(CORE|INT|DVDD|AVDD|AVCC|VDDA|ANA|ADC|VREF|USB|VREG|VIN|PLL|RTC|BAT)"
 )
+_POWER_NAME = glob_any(POWER_PIN_NAMES)  # every pin of every part is asked
 _BANK = re.compile(r"(?i)(?:VCCO|VCCIO|VDDIO|IOVDD|VIO)_?(\d+)$")
 _LEVEL_KEYS = ("vih_min", "vil_max", "i_high", "i_low", "c_in")
 # every number of one corner of an input (all InputLevels fields but its supply)
@@ -79,7 +79,7 @@ _SYMBOL = {"V": "V", "A": "A", "F": "F", "W": "W", "Ω": "Ω", "s": "s"}
 def is_power(pin: PartPin) -> bool:
     """A power-input pin: typed so, or named like one (VCC, VDD, IOVDD …)."""
     name = pin.name.upper()
-    return pin.type == "power_in" or any(fnmatch.fnmatchcase(name, p) for p in POWER_PIN_NAMES)
+    return pin.type == "power_in" or _POWER_NAME(name)
 
 
 def _number(text: str) -> int | None:
