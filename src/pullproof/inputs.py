@@ -86,7 +86,9 @@ class _LevelsMemo:
         found = self._found.get(key)
         if found is None:  # the model is kept with its levels: the key holds its family's id
             found = self._found[key] = (model, model.at(vdd))
-        return found[1]
+        levels = found[1]
+        # the supply's own source names the part it feeds: the corner carries the one asked
+        return levels if levels.vdd is vdd else replace(levels, vdd=vdd)
 
 
 class Inputs:
