@@ -385,3 +385,21 @@ def test_the_supply_nearest_the_pins_bank(tmp_path: Path) -> None:
     assert first("5") == "+1V8"  # bank 35
     # no bank in its name: a supply named for I/O first (VCCO), the nearest by pin number
     assert first("40") == "+1V8"
+
+
+def test_stand_changes_only_what_the_assumption_stands_for() -> None:
+    # Reference: the same change written with dataclasses.replace on every field.
+    from dataclasses import replace
+
+    from pullproof.assume import stand
+    from pullproof.provenance import Origin, Provenance, Sourced, Stands, Status
+    from pullproof.units import Q_
+
+    for stands in (None, Stands("", "", "I_high", "", "cmos", "a field"),
+                   Stands("U7", "3", "V_IH,min", "0.7 VDD", "cmos", "a field")):  # fmt: skip
+        src = Provenance(Origin.ASSUMED, "assumed I_high", Status.DEFAULT, "a stand-in", stands)
+        value = Sourced(Q_(1e-5, "A"), src)
+        old = stands or Stands("", "", src.where, "", "default", src.reason)
+        text = old.text or "10 µA"
+        want = replace(old, part=old.part or "U1", pin=old.pin or "5", text=text)
+        assert stand(value, "U1", "5") == Sourced(value.value, replace(src, stands=want))

@@ -169,3 +169,28 @@ def test_families_command_flags_assumed_and_missing_numbers(
     assert by["LVCMOS33"]["assumed"] == ["i_high", "i_low"]
     assert by["HC"]["assumed"] == [] and by["HC"]["missing"] == []
     assert by["LS"]["missing"] == ["C_in"]
+
+
+def test_an_input_model_is_evaluated_the_same_at_equal_supplies() -> None:
+    # What a review's memo of InputModel.at rests on (the reference is at() itself): the
+    # answer depends on the supply's value, not on the supply's source, which it carries as
+    # given; the key keeps 5 V and 5.0 V apart (they print differently) and tells overrides
+    # by their sources.
+    from dataclasses import replace
+
+    from pullproof.provenance import Provenance, Sourced
+    from pullproof.units import Q_
+
+    model = load_families()["HC"].model()
+    here = Sourced(Q_(4.5, "V"), Provenance(Origin.DERIVED, "rail A", Status.USER))
+    there = Sourced(Q_(4.5, "V"), Provenance(Origin.DERIVED, "rail B", Status.USER))
+    a, b = model.at(here), model.at(there)
+    assert model.at_key(here) == model.at_key(there)
+    assert a.vdd is here and b.vdd is there
+    assert replace(a, vdd=there) == b
+    whole = Sourced(Q_(5, "V"), here.source)
+    assert model.at_key(whole) != model.at_key(Sourced(Q_(5.0, "V"), here.source))
+    mine = Sourced(Q_(2.0, "V"), Provenance(Origin.FIELD, "field on U1", Status.USER))
+    yours = Sourced(Q_(2.0, "V"), Provenance(Origin.FIELD, "field on U2", Status.USER))
+    key_1 = model.with_overrides({"vih_min": mine}).at_key(here)
+    assert key_1 != model.with_overrides({"vih_min": yours}).at_key(here)

@@ -200,3 +200,23 @@ def test_assumed_defaults_say_what_they_stand_for(tmp_path: Path) -> None:
     assert tol.source.stands is not None
     assert (tol.source.stands.quantity, tol.source.stands.text) == ("tolerance", "5%")
     assert "resistor.tolerance" in tol.source.stands.fix
+
+
+def test_glob_lists_match_as_fnmatch_does() -> None:
+    # Reference: the standard library's fnmatch.fnmatchcase, one pattern at a time.
+    import fnmatch
+    import random
+
+    from pullproof.rules import glob_any
+
+    rng = random.Random(7)
+    patterns = ("GND*", "*_GND", "0V", "[AB]?_L*", "*230VAC*", "MAINS_[!O]*", "V+", "[", "a*b*c")
+    names = ["GND", "AGND", "X_GND", "0V", "A1_LINE", "C1_L", "P_230VAC_L", "MAINS_N", "MAINS_OK",
+             "V+", "[", "abc", "aXbYc", "", "gnd"]  # fmt: skip
+    alphabet = "AB01_GNDLVX+*[]!?abc"
+    names += ["".join(rng.choice(alphabet) for _ in range(rng.randint(0, 8))) for _ in range(300)]
+    for k in range(len(patterns) + 1):
+        chosen = patterns[:k]
+        match = glob_any(chosen)
+        for name in names:
+            assert match(name) == any(fnmatch.fnmatchcase(name, p) for p in chosen), (name, chosen)

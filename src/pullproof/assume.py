@@ -20,7 +20,6 @@ review is exactly as strict as one without any stand-in.
 
 from __future__ import annotations
 
-import fnmatch
 import re
 from collections.abc import Callable, Mapping
 from dataclasses import fields, replace
@@ -31,9 +30,9 @@ from .families.classes import AssumptionClasses, load_classes
 from .families.loader import InputModel
 from .families.match import PartInfo, PartKind, family_from_name
 from .network import InputLevels
-from .provenance import Origin, Sourced, Stands
+from .provenance import Origin, Provenance, Sourced, Stands
 from .rail_range import RailStandIns
-from .rules import RailSpec, Rules
+from .rules import RailSpec, Rules, glob_any
 from .units import format_si
 
 __all__ = ["POWER_PIN_NAMES", "Assumer", "io_supply", "is_power", "stand", "value_text"]
@@ -46,6 +45,7 @@ _IO_SUPPLY = re.compile(r"(?i)(IO|VCCO|VDDQ|OVDD|^VL$|^V_?LOGIC)")
 _OTHER_SUPPLY = re.compile(
     r"(?i)(CORE|INT|DVDD|AVDD|AVCC|VDDA|ANA|ADC|VREF|USB|VREG|VIN|PLL|RTC|BAT)"
 )
+_POWER_NAME = glob_any(POWER_PIN_NAMES)  # every pin of every part is asked
 _BANK = re.compile(r"(?i)(?:VCCO|VCCIO|VDDIO|IOVDD|VIO)_?(\d+)$")
 _LEVEL_KEYS = ("vih_min", "vil_max", "i_high", "i_low", "c_in")
 # every number of one corner of an input (all InputLevels fields but its supply)
@@ -60,8 +60,10 @@ def stand(value: Sourced, part: str, pin: str) -> Sourced:
         return value
     old = src.stands or Stands("", "", src.where, "", "default", src.reason)
     text = old.text or value_text(value)
-    new = replace(old, part=old.part or part, pin=old.pin or pin, text=text)
-    return Sourced(value.value, replace(src, stands=new))
+    # built field by field: a review stands in for several numbers of every network, and
+    # dataclasses.replace is several times slower than the constructor
+    new = Stands(old.part or part, old.pin or pin, old.quantity, text, old.basis, old.fix)
+    return Sourced(value.value, Provenance(src.origin, src.where, src.status, src.reason, new))
 
 
 def value_text(value: Sourced) -> str:
@@ -79,7 +81,7 @@ _SYMBOL = {"V": "V", "A": "A", "F": "F", "W": "W", "Ω": "Ω", "s": "s"}
 def is_power(pin: PartPin) -> bool:
     """A power-input pin: typed so, or named like one (VCC, VDD, IOVDD …)."""
     name = pin.name.upper()
-    return pin.type == "power_in" or any(fnmatch.fnmatchcase(name, p) for p in POWER_PIN_NAMES)
+    return pin.type == "power_in" or _POWER_NAME(name)
 
 
 def _number(text: str) -> int | None:

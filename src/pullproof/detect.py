@@ -73,6 +73,28 @@ def _magnitude(value: Sourced | None) -> Sourced | None:
     return None if value is None else Sourced(abs(value.value), value.source)
 
 
+class _RuleRails:
+    """What the rules say of a rail name, once per name in a review: every net, pull and
+    input supply asks, and the rules do not change while a review runs."""
+
+    def __init__(self, rules: Rules) -> None:
+        self.rules = rules
+        self._specs: dict[str, RailSpec | None] = {}
+        self._hazards: dict[str, Hazard | None] = {}
+
+    def spec(self, name: str) -> RailSpec | None:
+        """``rules.rail(name)``."""
+        if name not in self._specs:
+            self._specs[name] = self.rules.rail(name)
+        return self._specs[name]
+
+    def hazard(self, name: str) -> Hazard | None:
+        """The hazard of a pull rail called ``name``, judged by its rules spec alone."""
+        if name not in self._hazards:
+            self._hazards[name] = hazard_of(self.rules, name, self.spec(name))
+        return self._hazards[name]
+
+
 class Resolver:
     """Resolve pull sites of one circuit with one set of rules and part data."""
 
@@ -93,6 +115,7 @@ class Resolver:
         self.assumer = Assumer(circuit, infos, rules, self.rail_of)
         self.inputs = Inputs(self)
         self._rail_cache: dict[str, Rail | None] = {}
+        self.rule_rails = _RuleRails(rules)
 
     def element(self, label: str) -> Element:
         """The resistor a label names (``R3``, ``RN1 (1–8)``) as part and pins."""
@@ -106,7 +129,7 @@ class Resolver:
         """The rail a net stands for (None: a signal): a rules entry, a power symbol, a whole
         name that is a supply name, or a supply function (it feeds power pins)."""
         for name in (net.name, *net.labels) if net.power or net.labels else ():
-            spec = self.rules.rail(name)
+            spec = self.rule_rails.spec(name)
             if spec is not None:
                 return spec
         name = net.name.rsplit("/", 1)[-1]
@@ -138,7 +161,7 @@ class Resolver:
             usb = self.assumer.rails.usb_rail(name)
             if usb is not None:
                 return usb
-        spec = self.rules.rail(name)
+        spec = self.rule_rails.spec(name)
         if spec is not None and spec.follows and spec.v_min is None:
             base = self.rail(spec.follows) if spec.follows != name else None
             return None if base is None else replace(base, name=name, follows=spec.follows)
@@ -266,7 +289,7 @@ class Resolver:
         if own is not None:
             return own.reason
         for name in rails:
-            h = hazard_of(self.rules, name, self.rules.rail(name))
+            h = self.rule_rails.hazard(name)
             if h is not None:
                 return f"the pull rail {name} {h.what}"
         for m in site.net.members:  # a two-terminal part (capacitor, resistor) to such a net

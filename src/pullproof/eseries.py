@@ -11,8 +11,9 @@ computed in floating point land a hair off a series value (e.g. 1.35 MΩ).
 from __future__ import annotations
 
 import math
-from collections.abc import Iterator
+from bisect import bisect_left, bisect_right
 from decimal import Decimal
+from functools import lru_cache
 from types import MappingProxyType
 from typing import Any
 
@@ -91,12 +92,14 @@ def _ohms(value: Any) -> float:
     return float(value)
 
 
-def _decade_values(name: str, exponent: int) -> Iterator[float]:
-    """The series members in the decade [10**exponent, 10**(exponent+1))."""
+# Every query walks a few decades; building their members from Decimals each time was most
+# of a recommendation's cost. A decade's members are fixed, ascending, and few.
+@lru_cache(maxsize=512)
+def _decade_values(name: str, exponent: int) -> tuple[float, ...]:
+    """The series members in the decade [10**exponent, 10**(exponent+1)), ascending."""
     mantissas = _mantissas(name)
     shift = exponent - (len(str(mantissas[0])) - 1)
-    for m in mantissas:
-        yield float(Decimal(m).scaleb(shift))
+    return tuple(float(Decimal(m).scaleb(shift)) for m in mantissas)
 
 
 def _check_positive(x: float) -> None:
@@ -111,11 +114,11 @@ def values_between(name: str, lo: Any, hi: Any) -> list[float]:
     _check_positive(high)
     if low > high * (1 + REL_TOL):
         return []
+    first, last = low * (1 - REL_TOL), high * (1 + REL_TOL)
     out: list[float] = []
     for exponent in range(math.floor(math.log10(low)) - 1, math.floor(math.log10(high)) + 2):
-        for v in _decade_values(name, exponent):
-            if low * (1 - REL_TOL) <= v <= high * (1 + REL_TOL):
-                out.append(v)
+        members = _decade_values(name, exponent)
+        out.extend(members[bisect_left(members, first) : bisect_right(members, last)])
     return out
 
 

@@ -14,6 +14,7 @@ the band sits closer than the rules' margin ratio (default 10 %) to a binding ed
 from __future__ import annotations
 
 import math
+from bisect import bisect_left
 from collections.abc import Iterable, Mapping
 from dataclasses import replace
 
@@ -354,7 +355,10 @@ def recommend(
         why = f"the largest {rules.series} value whose band fits: least current"
     else:
         centre = math.sqrt(c_lo * c_hi)
-        pick = min(pool, key=lambda c: (abs(math.log(c / centre)), c))
+        # The pool ascends, so the distance from the centre on a log scale falls, then rises:
+        # the nearest is one of the two values around the centre (the lower on a tie).
+        at = bisect_left(pool, centre)
+        pick = min(pool[max(at - 1, 0) : at + 1], key=lambda c: (abs(math.log(c / centre)), c))
         why = f"the {rules.series} value nearest the window's geometric centre {eng(centre, 'Ω')}"
     note = "" if preferred or not soft else " (no value meets the preferred range)"
     return Recommendation(

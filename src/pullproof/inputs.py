@@ -74,11 +74,29 @@ def _refix(levels: InputLevels, fix: str) -> InputLevels:
     return replace(levels, **changes)
 
 
+class _LevelsMemo:
+    """:meth:`InputModel.at` for one review: every input of one part type on one rail asks
+    the same, and each answer costs many table lookups."""
+
+    def __init__(self) -> None:
+        self._found: dict[tuple[object, ...], tuple[InputModel, InputLevels]] = {}
+
+    def __call__(self, model: InputModel, vdd: Sourced) -> InputLevels:
+        key = model.at_key(vdd)
+        found = self._found.get(key)
+        if found is None:  # the model is kept with its levels: the key holds its family's id
+            found = self._found[key] = (model, model.at(vdd))
+        levels = found[1]
+        # the supply's own source names the part it feeds: the corner carries the one asked
+        return levels if levels.vdd is vdd else replace(levels, vdd=vdd)
+
+
 class Inputs:
     """Resolve the inputs of one circuit's pull networks (a part of :class:`Resolver`)."""
 
     def __init__(self, resolver: Resolver) -> None:
         self.resolver = resolver
+        self._at = _LevelsMemo()
 
     def supply_of(self, part: Part, pin: str) -> Rail | None:
         """The rail feeding ``pin``: the rail on the part's power-input pins, the one nearest
@@ -183,12 +201,12 @@ class Inputs:
         else:
             lo, hi = supply.v_min, supply.v_max
         v_lo, v_hi = lo.magnitude("V"), hi.magnitude("V")
-        corners: list[InputLevels] = [model.at(lo)]
+        corners: list[InputLevels] = [self._at(model, lo)]
         for bp in model.breakpoints:
             if v_lo + 1e-9 < bp < v_hi - 1e-9:
-                corners.append(model.at(_derived(Q_(bp, "V"), "family table breakpoint")))
+                corners.append(self._at(model, _derived(Q_(bp, "V"), "family table breakpoint")))
         if v_hi > v_lo + 1e-12:
-            corners.append(model.at(hi))
+            corners.append(self._at(model, hi))
         label = inp.pin if inp.name in ("", inp.pin) else f"{inp.pin} ({inp.name})"
         other = not inp.same_supply_as_pull
         has = frozenset(

@@ -105,18 +105,30 @@ class _Context:
 
     def values(self, ohms: float) -> PointValues:
         """The figures at ``ohms`` as floats in base units, without text or provenance."""
-        r_lo, r_hi = ohms * self.scale[0], ohms * self.scale[1]
-        v = self.v_max
-        sign = -1.0 if self.up else 1.0
-        return PointValues(
-            ohms=ohms,
-            band=(r_lo, r_hi),
-            current_max=None if v is None else v / r_lo,
-            current_min=None if self.v_low is None else self.v_low / r_hi,
-            power=None if v is None else v * v / r_lo,
-            idle=self.v_rail + sign * self.leak * r_hi if self.idle_known else None,
-            edge=None if self.rc is None else r_hi * self.rc,
-        )
+        return self.many((ohms,))[0]
+
+    def many(self, values: Iterable[float]) -> tuple[PointValues, ...]:
+        """:meth:`values` at each of ``values``: one loop over the many E-series candidates,
+        the network's numbers read once."""
+        lo_scale, hi_scale = self.scale
+        v, v_low, rc, v_rail = self.v_max, self.v_low, self.rc, self.v_rail
+        leak = (-1.0 if self.up else 1.0) * self.leak
+        idle_known = self.idle_known
+        out = []
+        for ohms in values:
+            r_lo, r_hi = ohms * lo_scale, ohms * hi_scale
+            out.append(
+                PointValues(
+                    ohms,
+                    (r_lo, r_hi),
+                    None if v is None else v / r_lo,
+                    None if v_low is None else v_low / r_hi,
+                    None if v is None else v * v / r_lo,
+                    v_rail + leak * r_hi if idle_known else None,
+                    None if rc is None else r_hi * rc,
+                )
+            )
+        return tuple(out)
 
 
 def _point(ctx: _Context, ohms: float, label: str) -> OperatingPoint:
@@ -316,11 +328,10 @@ def analyse(
     ctx = _Context(network)
     res = network.resistor
     point = _point(ctx, res.ohms.magnitude("ohm"), "/".join(res.refs))
-    return point, tuple(ctx.values(v) for v in values)
+    return point, ctx.many(values)
 
 
 def operating_points(network: PullNetwork, values: Iterable[float]) -> tuple[PointValues, ...]:
     """The operating point's numbers at each of ``values`` (ohms, e.g. the E-series candidates);
     the bands use the fitted part's tolerance and TCR."""
-    ctx = _Context(network)
-    return tuple(ctx.values(v) for v in values)
+    return _Context(network).many(values)

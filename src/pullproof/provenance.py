@@ -98,6 +98,8 @@ class Sourced:
         """The value as a float in ``unit`` (use "" for a dimensionless ratio)."""
         value = self.value
         if type(value) is Qty:
+            if value.unit == unit:  # asked in its own canonical unit: Qty.m_as's first case
+                return float(value.magnitude)
             return value.m_as(unit)
         from .units import ureg
 

@@ -15,6 +15,7 @@ import re
 import tomllib
 from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field, replace
+from functools import lru_cache
 from pathlib import Path
 from types import MappingProxyType
 from typing import Any
@@ -273,9 +274,7 @@ class Rules:
 
     def is_ground(self, net_name: str) -> bool:
         name = _bare(net_name).upper()
-        extra = str(self.values["ground"] or "")
-        patterns = (*_GROUND_PATTERNS, *(p.strip().upper() for p in extra.split(",") if p.strip()))
-        return name in _GROUNDS or any(fnmatch.fnmatchcase(name, p) for p in patterns)
+        return name in _GROUNDS or _ground_globs(str(self.values["ground"] or ""))(name)
 
     def rail(self, net_name: str) -> RailSpec | None:
         """The rail a net name stands for: rules entry, ground name, or a voltage in the name."""
@@ -309,9 +308,7 @@ class Rules:
 
     def is_mains(self, net_name: str) -> bool:
         """True when the net name matches a mains pattern (case-insensitive glob)."""
-        name = _bare(net_name).upper()
-        patterns = str(self.values["mains_patterns"] or "").split(",")
-        return any(fnmatch.fnmatchcase(name, p.strip().upper()) for p in patterns if p.strip())
+        return _globs(str(self.values["mains_patterns"] or ""))(_bare(net_name).upper())
 
     def for_net(self, net_name: str) -> NetRules:
         """The rules for one net: defaults, then every matching ``[[net]]`` entry in order."""
@@ -351,6 +348,29 @@ class Rules:
 
 def _bare(net_name: str) -> str:
     return net_name.rsplit("/", 1)[-1]
+
+
+def glob_any(patterns: tuple[str, ...]) -> Callable[[str], bool]:
+    """Whether a name matches any of the case-sensitive glob ``patterns`` (as
+    :func:`fnmatch.fnmatchcase` does), tried as one compiled expression: rails, grounds and
+    mains names are tested for every net of a review."""
+    if not patterns:
+        return lambda name: False
+    match = re.compile("|".join(fnmatch.translate(p) for p in patterns)).match
+    return lambda name: match(name) is not None
+
+
+@lru_cache(maxsize=64)
+def _globs(text: str) -> Callable[[str], bool]:
+    """The matcher of a rules value of comma-separated patterns (compared in upper case)."""
+    return glob_any(tuple(p.strip().upper() for p in text.split(",") if p.strip()))
+
+
+@lru_cache(maxsize=64)
+def _ground_globs(extra: str) -> Callable[[str], bool]:
+    """The built-in ground patterns and the rules' ``ground`` ones."""
+    extras = tuple(p.strip().upper() for p in extra.split(",") if p.strip())
+    return glob_any((*_GROUND_PATTERNS, *extras))
 
 
 def _schematic(where: str) -> Provenance:

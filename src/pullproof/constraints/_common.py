@@ -5,11 +5,13 @@ from __future__ import annotations
 import math
 from collections.abc import Callable, Iterable
 from dataclasses import dataclass
+from functools import lru_cache
 from typing import Protocol
 
 from ..network import Direction, InputLevels, InputOnNet, Missing, PullNetwork, PullResistor
 from ..network import NetworkRules as Rules
 from ..provenance import Origin, Provenance, Sourced, Status
+from ..quantity import Qty
 from ..results import Bound, BoundKind, Check, Term
 from ..units import Q_, format_si
 
@@ -65,6 +67,8 @@ class Builtin:
 # ---------------------------------------------------------------- formatting
 
 
+# A review formats the same few values (rails, levels, fitted parts) many times over.
+@lru_cache(maxsize=4096)
 def eng(x: float, symbol: str) -> str:
     """Format ``x`` (in base units) with an SI prefix and four significant digits."""
     return format_si(x, symbol, sig=4, minus="-")
@@ -75,7 +79,9 @@ _BASE = {"V": "V", "A": "A", "ohm": "Ω", "F": "F", "s": "s", "W": "W"}
 
 def fmt(value: Sourced, unit: str) -> str:
     """A sourced quantity as text in ``unit`` ("V", "A", "ohm", "F", "s", "W")."""
-    return eng(value.magnitude(unit), _BASE[unit])
+    q = value.value  # most are native and held in the unit asked: Sourced.magnitude's first case
+    x = float(q.magnitude) if type(q) is Qty and q.unit == unit else value.magnitude(unit)
+    return eng(x, _BASE[unit])
 
 
 def pct(x: float) -> str:

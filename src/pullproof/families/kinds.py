@@ -14,6 +14,7 @@ import fnmatch
 import re
 from collections.abc import Callable
 from enum import StrEnum
+from functools import lru_cache
 
 from ..circuit import Part
 
@@ -119,6 +120,15 @@ def _has_differential_input(part: Part) -> bool:
     return any(_NON_INVERTING.match(n) for n in names) and any(_INVERTING.match(n) for n in names)
 
 
+@lru_cache(maxsize=1024)  # a board places the same few symbols many times
+def _symbol_kind(upper: str) -> PartKind | None:
+    """The kind the first generic symbol name matching ``upper`` gives, if any."""
+    for pattern, kind in _SYMBOL_KIND:
+        if fnmatch.fnmatchcase(upper, pattern):
+            return kind
+    return None
+
+
 def classify(part: Part, family_from_name: Callable[[str], object | None]) -> PartKind:
     """The kind of ``part`` from its symbol name, part number, reference prefix and pins.
 
@@ -126,10 +136,9 @@ def classify(part: Part, family_from_name: Callable[[str], object | None]) -> Pa
     this module knows nothing of family data.
     """
     symbol = symbol_name(part.lib_id)
-    upper = symbol.upper()
-    for pattern, kind in _SYMBOL_KIND:
-        if fnmatch.fnmatchcase(upper, pattern):
-            return kind
+    by_symbol = _symbol_kind(symbol.upper())
+    if by_symbol is not None:
+        return by_symbol
     # A logic IC needs at least a supply, a ground, an input and an output: a part drawn with
     # one to three pins whose number happens to read like 4020 is a header, not a counter.
     few_pins = 0 < len(part.pins) < 4

@@ -253,6 +253,16 @@ class InputModel:
         merged.update(overrides)
         return replace(self, overrides=MappingProxyType(merged))
 
+    def at_key(self, vdd: Sourced) -> tuple[Any, ...]:
+        """Everything :meth:`at` reads, hashable: two calls with equal keys give equal levels
+        but for their ``vdd``, which is the argument itself. The family counts by identity (its
+        tables are not hashable; a holder of the key keeps the model, and so the family,
+        alive); values by their exact text (and an override by its source), so that ``5`` and
+        ``5.0`` V, or 1 V and 1000 mV, stay apart."""
+        overrides = tuple((k, repr(v.value), v.source) for k, v in self.overrides.items())
+        return (id(self.family), self.schmitt, self.room_temperature_only, overrides,
+                repr(vdd.value))  # fmt: skip
+
     def at(self, vdd: Any) -> InputLevels:
         """The guaranteed levels and currents at supply ``vdd`` (a Sourced, quantity or volts)."""
         if isinstance(vdd, Sourced):

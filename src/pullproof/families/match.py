@@ -482,6 +482,12 @@ def _field_source(part: Part, name: str) -> Provenance:
     return Provenance(Origin.FIELD, f"field '{name}' on {part.ref}", Status.USER)
 
 
+def _own_fields(part: Part) -> bool:
+    """Whether any field is named ``pullproof.…``: most parts carry none, and looking each of
+    those names up walks every field (the names compare case-insensitively)."""
+    return any(k.casefold().startswith("pullproof.") for k in part.fields)
+
+
 def _read_field(part: Part, name: str, reader: Callable[..., Any]) -> Sourced | None:
     text = part.field(name)
     if text is None:
@@ -662,6 +668,8 @@ _HINT = "add field 'pullproof.family' (e.g. HC) or a part-library entry"
 
 def _overrides(part: Part) -> dict[str, Sourced]:
     out: dict[str, Sourced] = {}
+    if not _own_fields(part):  # every name read here is a pullproof.… field
+        return out
     for name, (key, reader) in _INPUT_FIELDS.items():
         value = _read_field(part, name, reader)
         if value is not None:
@@ -683,7 +691,7 @@ def _schmitt_field(part: Part) -> bool | None:
 
 def _ratings(part: Part, entry: LibraryEntry | None, kind: PartKind) -> Ratings:
     values: dict[str, Sourced] = dict(entry.ratings) if entry else {}
-    for key, reader in _RATING_READERS.items():
+    for key, reader in _RATING_READERS.items() if _own_fields(part) else ():
         got = _read_field(part, f"pullproof.{key}", reader)
         if got is not None:
             values[key] = got
