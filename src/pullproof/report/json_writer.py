@@ -39,21 +39,29 @@ def _float(x: float) -> str:
     return _SPECIAL.get(r, r)
 
 
+def _scalar(v: Any) -> str | None:
+    """A bool, None or number as json writes it (subclasses as their base), else None."""
+    if v is True:
+        return "true"
+    if v is False:
+        return "false"
+    if v is None:
+        return "null"
+    if isinstance(v, int):
+        return int.__repr__(v)
+    if isinstance(v, float):
+        return _float(v)
+    return None
+
+
 def _key(k: Any) -> str:
     """A mapping key as json writes it (str, or a number/bool/None made text)."""
     if isinstance(k, str):
         return _STRING(k)
-    if k is True:
-        return '"true"'
-    if k is False:
-        return '"false"'
-    if k is None:
-        return '"null"'
-    if isinstance(k, float):
-        return _STRING(_float(k))
-    if isinstance(k, int):
-        return _STRING(int.__repr__(k))
-    raise TypeError(f"keys must be str, int, float, bool or None, not {type(k).__name__}")
+    text = _scalar(k)
+    if text is None:
+        raise TypeError(f"keys must be str, int, float, bool or None, not {type(k).__name__}")
+    return _STRING(text)
 
 
 class _Encoder:
@@ -71,26 +79,11 @@ class _Encoder:
         return pads[level]
 
     def text(self, v: Any, level: int) -> str:
-        t = type(v)  # exact types first: they are nearly all of a document
-        if t is str:
+        if type(v) is str or isinstance(v, str):  # the exact type first: most leaves
             return _STRING(v)
-        if t is float:
-            r = float.__repr__(v)
-            return _SPECIAL.get(r, r)
-        if t is int:
-            return int.__repr__(v)
-        if v is None:
-            return "null"
-        if v is True:
-            return "true"
-        if v is False:
-            return "false"
-        if isinstance(v, str):
-            return _STRING(v)
-        if isinstance(v, int):
-            return int.__repr__(v)
-        if isinstance(v, float):
-            return _float(v)
+        leaf = _scalar(v)
+        if leaf is not None:
+            return leaf
         if isinstance(v, dict):
             if not v:
                 return "{}"
