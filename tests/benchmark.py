@@ -21,14 +21,18 @@ process measures, in CPU seconds (``time.process_time``):
 
 ``review`` is parse + connect + detect + evaluate + json, compared with ``loads``. Every
 stage, ``loads`` and ``floor`` included, runs inside :func:`pullproof.heap.few_collections`,
-as every command does. The peak resident memory is that of a separate
-``pullproof review --json`` process (``ru_maxrss``), compared with the schematic text size.
+as every command does, in a fresh process per board (so that no board's heap or memos carry
+into the next one's times). The peak resident memory is that of a separate
+``pullproof review --json`` process (``VmHWM``: the process's own high-water mark; ``ru_maxrss``
+would also count the benchmark's pages that the child inherits across fork and exec),
+compared with the schematic text size.
 The growth line gives t(10 000) / t(1 000) per stage; the last lines check the targets.
 """
 
 from __future__ import annotations
 
 import argparse
+import json
 import math
 import os
 import re
@@ -199,6 +203,18 @@ def _stage_times(root: Path, with_note: bool) -> dict[str, float]:
     return out
 
 
+def stage_times_apart(root: Path) -> dict[str, float]:
+    """:func:`stage_times` of ``root`` measured in a fresh child process."""
+    done = subprocess.run(
+        [sys.executable, __file__, "--stages-of", str(root)],
+        capture_output=True,
+        text=True,
+        check=True,
+        env=_CHILD_ENV,
+    )
+    return dict(json.loads(done.stdout))
+
+
 def _names(root: Path) -> set[str]:
     from pullproof.schematic.hierarchy import load_hierarchy
 
@@ -211,7 +227,9 @@ from pullproof.cli import main
 sys.stdout = open(os.devnull, "w")
 main(sys.argv[1:])
 usage = resource.getrusage(resource.RUSAGE_SELF)
-sys.stderr.write(f"{usage.ru_utime + usage.ru_stime} {usage.ru_maxrss}")
+with open("/proc/self/status", encoding="ascii") as status:
+    hwm = next((line.split()[1] for line in status if line.startswith("VmHWM:")), usage.ru_maxrss)
+sys.stderr.write(f"{usage.ru_utime + usage.ru_stime} {hwm}")
 """
 
 
@@ -326,7 +344,11 @@ def main(argv: list[str] | None = None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--sizes", type=int, nargs="*", default=[10, 100, 1000, 10000])
     ap.add_argument("--smoke", action="store_true", help="skip the real-design timing (for CI)")
+    ap.add_argument("--stages-of", type=Path, help=argparse.SUPPRESS)  # the child's task
     args = ap.parse_args(argv)
+    if args.stages_of:
+        print(json.dumps(stage_times(args.stages_of)))
+        return 0
     started = time.perf_counter()
     with tempfile.TemporaryDirectory() as tmp:
         folder = Path(tmp)
@@ -334,7 +356,7 @@ def main(argv: list[str] | None = None) -> int:
             rows = []
             for n in args.sizes:
                 root = draw(n, folder)
-                times = stage_times(root)
+                times = stage_times_apart(root)
                 _, _, rss = process_run(root)
                 rows.append((n, _text_bytes(root), times, rss))
                 for f in folder.glob(f"*_{n}.kicad_sch"):

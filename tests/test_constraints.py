@@ -626,3 +626,33 @@ def test_registry_loads_plugin(monkeypatch: pytest.MonkeyPatch) -> None:
     reg = registry()
     assert list(reg)[-1] == "doser-pump"
     assert registry(plugins=False) is BUILTIN
+
+
+def _pump_check(net: Any) -> tuple[Bound | Check, ...]:
+    return (Check("doser-pump", "Doser pump", True, False, "I ≤ I_max", "1 ≤ 2", ()),)
+
+
+_pump_check.id = "doser-pump"  # type: ignore[attr-defined]
+_pump_check.title = "Doser pump"  # type: ignore[attr-defined]
+
+
+def test_review_runs_installed_plugins(monkeypatch: pytest.MonkeyPatch) -> None:
+    # The README's "Adding a constraint": an entry point in the group is judged with the
+    # built-ins on every network a review evaluates (found once per review).
+    from pathlib import Path
+
+    from pullproof.review import review
+
+    calls: list[str] = []
+
+    def eps(group: str) -> list[_EP]:
+        calls.append(group)
+        return [_EP("doser", _pump_check)]
+
+    monkeypatch.setattr("pullproof.constraints.entry_points", eps)
+    root = Path(__file__).parent.parent / "fixtures" / "review" / "interlock_panel.kicad_sch"
+    result = review(root)
+    judged = [n for n in result.networks if n.checks]
+    assert len(judged) > 5
+    assert all(any(c.constraint == "doser-pump" for c in n.checks) for n in judged)
+    assert calls == ["pullproof.constraints"]

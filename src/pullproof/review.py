@@ -15,13 +15,13 @@ import re
 from collections.abc import Callable, Iterable, Mapping, Sequence
 from dataclasses import dataclass, replace
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 from .acceptance import apply_acceptances, read_acceptances
 from .circuit import Circuit, Part
 from .detect import Resolver, UnknownRail, enabled_internal_pull
 from .elements import library_pins
 from .errors import PullproofError, SourceText, ValueParseError
-from .evaluate import evaluate
 from .families.match import (
     LibraryEntry,
     PartInfo,
@@ -50,6 +50,9 @@ from .schematic.model import LibPin
 from .textfile import Unreadable, read_regular
 from .topology import PinOnNet, PullSite, find_pulls
 from .units import Q_
+
+if TYPE_CHECKING:
+    from .constraints import Constraint
 
 __all__ = ["PARTS_FILE", "Selection", "parse_ref_list", "review"]
 
@@ -358,6 +361,14 @@ def _placed(exc: ValueParseError, circuit: Circuit) -> ValueParseError:
     return exc
 
 
+def evaluate(network: PullNetwork, constraints: Mapping[str, Constraint]) -> NetworkResult:
+    """Judge one network by ``constraints``. The engine is imported on first use, so that
+    a design without pull networks does not pay for loading the constraints."""
+    from .evaluate import evaluate as judge
+
+    return judge(network, registry=constraints)
+
+
 def review_circuit(
     circuit: Circuit,
     rules: Rules,
@@ -385,6 +396,7 @@ def review_circuit(
         offboard=lambda net: resolver.inputs.offboard_input(net) is not None,
     )
     resolver.elements = topo.elements  # topology names the array elements it found
+    constraints: Mapping[str, Constraint] | None = None
 
     def chosen(refs: Iterable[str]) -> bool:
         if not select.active:
@@ -429,7 +441,11 @@ def review_circuit(
                 resolved,
                 notes=(*resolved.notes, f"parallel pulls go to different rails: {sorted(rails)}"),
             )
-        result = evaluate(resolved)
+        if constraints is None:  # built-ins and installed plug-ins, looked up once a review
+            from .constraints import registry
+
+            constraints = registry()
+        result = evaluate(resolved, constraints)
         results.append(result)
         findings.extend(_check_findings(result))
     for net, switches, inputs in topo.unpulled_switch_inputs:
