@@ -5,6 +5,7 @@ from __future__ import annotations
 import hashlib
 import re
 import shutil
+from collections.abc import Iterator
 from dataclasses import replace
 from pathlib import Path
 
@@ -16,8 +17,15 @@ from pullproof import __version__
 from pullproof.errors import PullproofError
 from pullproof.report import note as note_mod
 from pullproof.report.format import format_ohms, format_quantity, format_window
-from pullproof.report.note import note_context, note_environment, render_note, write_note
+from pullproof.report.note import (
+    note_context,
+    note_environment,
+    render_note,
+    stream_note,
+    write_note,
+)
 from pullproof.results import ReviewResult
+from pullproof.textfile import write_report
 from pullproof.units import Q_
 from resultfactory import HOSTILE, HOSTILE_VALUE, hostile_result, sample_result
 
@@ -266,6 +274,32 @@ def test_write_note_failure_leaves_old_note(
     with pytest.raises(PullproofError) as err:
         write_note(sample_result(1), target, title="t", date="d")
     assert str(err.value) == f"{target}: cannot write the note (No space left on device)"
+    assert target.read_text(encoding="utf-8") == "old"
+    assert [p.name for p in tmp_path.iterdir()] == ["note.html"]
+
+
+def test_written_note_is_the_rendered_note(tmp_path: Path) -> None:
+    # write_note streams the template's pieces into the file: the same text as render_note.
+    result = sample_result(40)
+    target = tmp_path / "note.html"
+    write_note(result, target, title="t", date="2025-03-01")
+    assert target.read_text(encoding="utf-8") == render_note(result, title="t", date="2025-03-01")
+    assert "".join(stream_note(result, title="t", date="2025-03-01")) == render_note(
+        result, title="t", date="2025-03-01"
+    )
+
+
+def test_error_while_streaming_leaves_old_report(tmp_path: Path) -> None:
+    # A piece that fails half-way (a template error, say) must not leave half a file.
+    target = tmp_path / "note.html"
+    target.write_text("old", encoding="utf-8")
+
+    def pieces() -> Iterator[str]:
+        yield "<!DOCTYPE html>" * 10_000
+        raise RuntimeError("template failed")
+
+    with pytest.raises(RuntimeError):
+        write_report(target, pieces(), "note", ())
     assert target.read_text(encoding="utf-8") == "old"
     assert [p.name for p in tmp_path.iterdir()] == ["note.html"]
 

@@ -18,6 +18,7 @@ import os
 import stat
 import tempfile
 from collections.abc import Iterable
+from itertools import islice
 from pathlib import Path
 
 from .errors import PullproofError, SourceText
@@ -129,9 +130,14 @@ def read_utf8(path: Path, error: type[PullproofError], what: str) -> str:
     return decode_utf8(data, str(path), error, what).removeprefix("\ufeff")
 
 
-def write_report(path: str | os.PathLike[str], text: str, what: str, inputs: Iterable[str]) -> None:
-    """Write ``text`` to ``path`` atomically: a temporary file in the same folder replaces
-    it, so a failure never leaves half a file. ``what`` names the report in messages.
+def write_report(
+    path: str | os.PathLike[str], text: str | Iterable[str], what: str, inputs: Iterable[str]
+) -> None:
+    """Write ``text`` (a string, or its pieces in order) to ``path`` atomically: a temporary
+    file in the same folder replaces it, so a failure never leaves half a file. ``what``
+    names the report in messages. Pieces are written as they come, a few thousand joined at
+    a time, so a large report is never one string in memory; an error while they are made
+    removes the temporary file and leaves ``path`` as it was.
 
     Raises:
         PullproofError: ``path`` is one of ``inputs`` (a file the review read), or it
@@ -146,6 +152,7 @@ def write_report(path: str | os.PathLike[str], text: str, what: str, inputs: Ite
             raise PullproofError(f"{target}: cannot write the {what} ({kind})")
     folder = target.parent if str(target.parent) else Path(".")
     tmp_name = ""
+    replaced = False
     try:
         with tempfile.NamedTemporaryFile(
             "w",
@@ -156,11 +163,18 @@ def write_report(path: str | os.PathLike[str], text: str, what: str, inputs: Ite
             delete=False,
         ) as tmp:
             tmp_name = tmp.name
-            tmp.write(text)
+            if isinstance(text, str):
+                tmp.write(text)
+            else:
+                pieces = iter(text)
+                while chunk := list(islice(pieces, 4096)):
+                    tmp.write("".join(chunk))
             tmp.flush()
             os.fsync(tmp.fileno())
         os.replace(tmp_name, target)
+        replaced = True
     except OSError as e:
-        if tmp_name and os.path.exists(tmp_name):
-            os.unlink(tmp_name)
         raise PullproofError(f"{target}: cannot write the {what} ({e.strerror or e})") from None
+    finally:
+        if not replaced and tmp_name and os.path.exists(tmp_name):
+            os.unlink(tmp_name)

@@ -14,7 +14,7 @@ import datetime
 import hashlib
 import os
 import re
-from collections.abc import Iterable
+from collections.abc import Iterable, Iterator
 from dataclasses import dataclass
 from functools import lru_cache
 from importlib import resources
@@ -683,6 +683,20 @@ def render_note(
     return _default_environment().get_template(TEMPLATE).render(**context)
 
 
+def stream_note(
+    result: ReviewResult,
+    *,
+    title: str,
+    author: str = "",
+    date: str | None = None,
+    version: str = __version__,
+) -> Iterator[str]:
+    """The text of :func:`render_note`, in pieces as the template makes them (joined, the
+    same string). The context is built, and the template found, before this returns."""
+    context = note_context(result, title=title, author=author, date=date, version=version)
+    return _default_environment().get_template(TEMPLATE).generate(**context)
+
+
 def write_note(result: ReviewResult, path: str | os.PathLike[str], **kw: Any) -> None:
     """Render and write the note to ``path`` atomically.
 
@@ -692,5 +706,4 @@ def write_note(result: ReviewResult, path: str | os.PathLike[str], **kw: Any) ->
     those of :func:`render_note`. Raises :class:`PullproofError` when the file
     cannot be written.
     """
-    html = render_note(result, **kw)
-    write_report(path, html, "note", result.inputs)
+    write_report(path, stream_note(result, **kw), "note", result.inputs)
