@@ -7,7 +7,7 @@ Not a test (pytest does not collect it): run it by hand and copy the tables into
     python tests/benchmark.py --sizes 10 --smoke   # what CI runs: one quick pass, no real design
 
 Each board has N networks of one pull-up, one push button and one 74HC14 input (the flat
-board on one sheet; the hierarchical board as one sheet used ten times). For each N, one
+board on one sheet; the hierarchical board as one sheet used ten times). For each N, a fresh
 process measures, in CPU seconds (``time.process_time``):
 
 * ``floor``: one regular expression tokenising the text — the least any reader must do;
@@ -213,14 +213,7 @@ def _stage_times(root: Path, with_note: bool) -> dict[str, float]:
 
 def stage_times_apart(root: Path) -> dict[str, float]:
     """:func:`stage_times` of ``root`` measured in a fresh child process."""
-    done = subprocess.run(
-        [sys.executable, __file__, "--stages-of", str(root)],
-        capture_output=True,
-        text=True,
-        check=True,
-        env=_CHILD_ENV,
-    )
-    return dict(json.loads(done.stdout))
+    return dict(json.loads(_child(__file__, "--stages-of", str(root)).stdout))
 
 
 def _names(root: Path) -> set[str]:
@@ -246,18 +239,19 @@ sys.stderr.write(f"{usage.ru_utime + usage.ru_stime} {hwm}")
 _CHILD_ENV = {k: v for k, v in os.environ.items() if k != "PYTHONDONTWRITEBYTECODE"}
 
 
+def _child(*argv: str) -> subprocess.CompletedProcess[str]:
+    """``python ARGV`` in a child process with the bytecode kept; its output captured."""
+    return subprocess.run(
+        [sys.executable, *argv], capture_output=True, text=True, check=True, env=_CHILD_ENV
+    )
+
+
 def process_run(root: Path, *command: str) -> tuple[float, float, int]:
     """(wall s, CPU s, peak RSS bytes) of a whole ``pullproof COMMAND ROOT`` process
     (default ``review ROOT --json``), interpreter start-up and imports included."""
     args = [*command, str(root)] if command else ["review", str(root), "--json", *LARGE_ARGS]
     t0 = time.perf_counter()
-    done = subprocess.run(
-        [sys.executable, "-c", _CHILD, *args],
-        capture_output=True,
-        text=True,
-        check=True,
-        env=_CHILD_ENV,
-    )
+    done = _child("-c", _CHILD, *args)
     wall = time.perf_counter() - t0
     cpu, rss_kb = done.stderr.split()[-2:]
     return wall, float(cpu), int(rss_kb) * 1024  # Linux reports kilobytes

@@ -679,8 +679,7 @@ def render_note(
     printed in the header. Raises :class:`PullproofError` when the templates
     are missing from the installation.
     """
-    context = note_context(result, title=title, author=author, date=date, version=version)
-    return _default_environment().get_template(TEMPLATE).render(**context)
+    return "".join(stream_note(result, title=title, author=author, date=date, version=version))
 
 
 def stream_note(
@@ -691,8 +690,8 @@ def stream_note(
     date: str | None = None,
     version: str = __version__,
 ) -> Iterator[str]:
-    """The text of :func:`render_note`, in pieces as the template makes them (joined, the
-    same string). The context is built, and the template found, before this returns."""
+    """The design note in pieces as the template makes them (:func:`render_note` joins
+    them). The context is built, and the template found, before this returns."""
     context = note_context(result, title=title, author=author, date=date, version=version)
     return _default_environment().get_template(TEMPLATE).generate(**context)
 
